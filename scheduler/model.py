@@ -1,0 +1,184 @@
+"""The array model: site, limits, overheads, stations, delay lines, configurations.
+
+Frozen dataclasses, SI units inside (metres, seconds, radians), the unit in each name.
+A :class:`Configuration` says which station feeds which delay line; resolving it with
+:meth:`ArrayModel.beams` gives a :class:`Beams` object, the numpy view of the lines in
+use that the numerical core works with.
+
+Sign conventions (see DOMAIN.md section 3): station positions are east, north, up
+(ENU) from the array reference point; ``internal_path_m`` is the fixed optical path from
+the station to the combiner without the delay line; the optical path a line must add is
+``x_i = K + p_i . s - a_i - f_i`` with ``K`` a constant common to all lines.
+"""
+
+from __future__ import annotations
+
+import difflib
+from dataclasses import dataclass, field
+
+import numpy as np
+
+
+@dataclass(frozen=True)
+class Site:
+    """Where the array stands: geodetic latitude and longitude (east positive)."""
+
+    name: str
+    latitude_rad: float
+    longitude_rad: float
+    height_m: float
+
+
+@dataclass(frozen=True)
+class Limits:
+    """Pointing and sky limits.  Altitudes are unrefracted."""
+
+    min_altitude_rad: float = float(np.radians(30.0))
+    max_altitude_rad: float = float(np.radians(87.0))
+    sun_altitude_max_rad: float = float(np.radians(-12.0))
+    moon_separation_min_rad: float = float(np.radians(15.0))
+    sun_separation_min_rad: float = float(np.radians(45.0))
+
+
+@dataclass(frozen=True)
+class Overheads:
+    """Time costs of changing target.
+
+    ``slew_rate_rad_s`` applies to both telescope axes; ``settle_s`` is added after a
+    telescope slew and after a carriage move; ``acquisition_s`` follows every change of
+    target (pointing, tip-tilt lock, fringe search).
+    """
+
+    acquisition_s: float = 480.0
+    slew_rate_rad_s: float = float(np.radians(1.5))
+    settle_s: float = 5.0
+
+
+@dataclass(frozen=True)
+class Station:
+    """A fixed pad.  ``horizon`` is a tuple of (azimuth_rad, min_altitude_rad) points,
+    azimuth from north through east, interpolated linearly and wrapping at 2 pi."""
+
+    name: str
+    east_m: float
+    north_m: float
+    up_m: float
+    internal_path_m: float
+    horizon: tuple[tuple[float, float], ...] = ()
+
+    @property
+    def enu_m(self) -> np.ndarray:
+        return np.array([self.east_m, self.north_m, self.up_m])
+
+
+@dataclass(frozen=True)
+class DelayLine:
+    """A delay line, in optical path (twice the carriage's mechanical travel)."""
+
+    name: str
+    opd_min_m: float
+    opd_max_m: float
+    max_rate_m_s: float
+
+
+@dataclass(frozen=True)
+class Configuration:
+    """Which station feeds each delay line, and fixed offsets inserted for the night."""
+
+    name: str
+    feeds: tuple[tuple[str, str], ...]  # (delay line, station)
+    fixed_offsets_m: tuple[tuple[str, float], ...] = ()
+
+    def offset_m(self, line: str) -> float:
+        return dict(self.fixed_offsets_m).get(line, 0.0)
+
+
+@dataclass(frozen=True, eq=False)
+class Beams:
+    """The lines of one configuration as arrays, one entry per line in use.
+
+    Attributes are numpy arrays of length L (``position_enu_m`` is L x 3).  ``path_m``
+    is ``internal_path_m + fixed_offset_m``: the constant part of each light path.
+    """
+
+    configuration: str
+    line_names: tuple[str, ...]
+    station_names: tuple[str, ...]
+    position_enu_m: np.ndarray
+    internal_path_m: np.ndarray
+    fixed_offset_m: np.ndarray
+    opd_min_m: np.ndarray
+    opd_max_m: np.ndarray
+    rate_m_s: np.ndarray
+    horizons: tuple[tuple[tuple[float, float], ...], ...] = field(default=())
+
+    @property
+    def path_m(self) -> np.ndarray:
+        return self.internal_path_m + self.fixed_offset_m
+
+    def __len__(self) -> int:
+        return len(self.line_names)
+
+    def longest_baseline_m(self) -> float:
+        p = self.position_enu_m
+        return float(np.max(np.linalg.norm(p[:, None, :] - p[None, :, :], axis=-1)))
+
+
+def _did_you_mean(name: str, choices: list[str]) -> str:
+    close = difflib.get_close_matches(name, choices, n=1)
+    hint = f"; did you mean {close[0]!r}?" if close else ""
+    return f"{name!r} is not one of {sorted(choices)}{hint}"
+
+
+@dataclass(frozen=True)
+class ArrayModel:
+    """A whole array description as loaded from an array file."""
+
+    site: Site
+    limits: Limits
+    overheads: Overheads
+    stations: tuple[Station, ...]
+    delay_lines: tuple[DelayLine, ...]
+    configurations: tuple[Configuration, ...]
+    source: str = ""
+
+    def station(self, name: str) -> Station:
+        for s in self.stations:
+            if s.name == name:
+                return s
+        raise KeyError(_did_you_mean(name, [s.name for s in self.stations]))
+
+    def delay_line(self, name: str) -> DelayLine:
+        for d in self.delay_lines:
+            if d.name == name:
+                return d
+        raise KeyError(_did_you_mean(name, [d.name for d in self.delay_lines]))
+
+    def configuration(self, name: str) -> Configuration:
+        for c in self.configurations:
+            if c.name == name:
+                return c
+        raise KeyError(_did_you_mean(name, [c.name for c in self.configurations]))
+
+    def beams(self, configuration: str, out: frozenset[str] = frozenset()) -> Beams:
+        """Resolve a configuration into arrays.
+
+        ``out`` names stations or delay lines that are unavailable; their lines are
+        dropped, so the remaining baselines alone constrain the delay.
+        """
+        config = self.configuration(configuration)
+        feeds = [(ln, st) for ln, st in config.feeds if ln not in out and st not in out]
+        lines = [self.delay_line(ln) for ln, _ in feeds]
+        stations = [self.station(st) for _, st in feeds]
+        return Beams(
+            configuration=config.name,
+            line_names=tuple(d.name for d in lines),
+            station_names=tuple(s.name for s in stations),
+            position_enu_m=np.array([s.enu_m for s in stations]).reshape(-1, 3),
+            internal_path_m=np.array([s.internal_path_m for s in stations], dtype=float),
+            fixed_offset_m=np.array([config.offset_m(d.name) for d in lines], dtype=float),
+            opd_min_m=np.array([d.opd_min_m for d in lines], dtype=float),
+            opd_max_m=np.array([d.opd_max_m for d in lines], dtype=float),
+            rate_m_s=np.array([d.max_rate_m_s for d in lines], dtype=float),
+            horizons=tuple(s.horizon for s in stations),
+        )

@@ -1,0 +1,76 @@
+"""Observable windows: when each target can be observed tonight, and why not otherwise.
+
+The night is sampled on a grid (60 s by default); every change of verdict between two
+samples is then located by bisection on the exact constraints, so window edges are good
+to about half a second.  Each excluded stretch carries the first constraint that fails
+in it (see :mod:`scheduler.constraints`).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from scheduler.constraints import OK, SkyContext, evaluate
+
+GRID_STEP_S = 60.0
+BISECTIONS = 7  # 60 s / 2**7 < 0.5 s
+
+
+@dataclass(frozen=True)
+class TargetWindows:
+    """Observable intervals and excluded stretches of one target (POSIX UTC seconds)."""
+
+    name: str
+    observable: tuple[tuple[float, float], ...]
+    excluded: tuple[tuple[float, float, int], ...]  # (start, end, reason code)
+
+    @property
+    def hours(self) -> float:
+        return sum(b - a for a, b in self.observable) / 3600.0
+
+    def start_windows(self, duration_s: float) -> tuple[tuple[float, float], ...]:
+        """Intervals of start times for which a visit of ``duration_s`` stays inside one
+        observable window."""
+        return tuple((a, b - duration_s) for a, b in self.observable if b - a >= duration_s)
+
+    def main_reason(self) -> int:
+        """The reason code that excludes the most time (OK if nothing is excluded)."""
+        lost: dict[int, float] = {}
+        for a, b, code in self.excluded:
+            lost[code] = lost.get(code, 0.0) + b - a
+        return max(lost, key=lost.get) if lost else OK
+
+
+def observable_windows(ctx: SkyContext, step_s: float = GRID_STEP_S) -> list[TargetWindows]:
+    """Windows of every target in the context's catalog over its night."""
+    t = ctx.night.grid(step_s)
+    count = len(ctx.targets)
+    idx = np.arange(count)
+    code = evaluate(ctx, idx[:, None], t[None, :]).code  # (N, T)
+    # every change of verdict between neighbouring samples, located by bisection
+    tgt, col = np.nonzero(code[:, 1:] != code[:, :-1])
+    left, right = t[col].copy(), t[col + 1].copy()
+    code_left = code[tgt, col]
+    for _ in range(BISECTIONS):
+        mid = 0.5 * (left + right)
+        same = evaluate(ctx, tgt, mid).code == code_left
+        left = np.where(same, mid, left)
+        right = np.where(same, right, mid)
+    edge = 0.5 * (left + right)
+    out = []
+    for i in range(count):
+        sel = tgt == i
+        bounds = np.concatenate([[t[0]], edge[sel], [t[-1]]])
+        codes = np.concatenate([code[i, col[sel]], [code[i, -1]]])
+        obs, exc = [], []
+        for a, b, c in zip(bounds[:-1], bounds[1:], codes, strict=True):
+            if b <= a:
+                continue
+            if c == OK:
+                obs.append((float(a), float(b)))
+            else:
+                exc.append((float(a), float(b), int(c)))
+        out.append(TargetWindows(ctx.targets.names[i], tuple(obs), tuple(exc)))
+    return out
