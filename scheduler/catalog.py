@@ -8,6 +8,7 @@ for right ascension, ``+dd:mm:ss`` for declination).  Unknown columns are kept i
 
 from __future__ import annotations
 
+import io
 import math
 import re
 from dataclasses import dataclass
@@ -126,7 +127,11 @@ def read_table(path: str | Path) -> pd.DataFrame:
     suffix = path.suffix.lower()
     try:
         if suffix in (".csv", ".txt"):
-            return pd.read_csv(path, dtype=str, keep_default_na=False, comment=None)
+            lines = path.read_text(encoding="utf-8").splitlines(keepends=True)
+            skip = next((k for k, ln in enumerate(lines) if not ln.startswith("#")), len(lines))
+            frame = pd.read_csv(io.StringIO("".join(lines[skip:])), dtype=str, keep_default_na=False)
+            frame.attrs["header_line"] = skip + 1
+            return frame
         from astropy.table import Table
 
         fmt = "ascii.ecsv" if suffix == ".ecsv" else "votable" if suffix in (".xml", ".vot") else None
@@ -163,6 +168,7 @@ def parse_targets(frame: pd.DataFrame, source: str = "<targets>") -> Targets:
             p.add(f"column {col!r}", "missing required column")
     p.raise_if_any()
     n = len(frame)
+    first = int(frame.attrs.get("header_line", 1)) + 1  # file line of the first data row
     cols = {c: frame[c].astype(str).str.strip().tolist() for c in frame.columns}
     get = lambda c, i, d="": cols[c][i] if c in cols and cols[c][i] != "" else d  # noqa: E731
 
@@ -181,22 +187,22 @@ def parse_targets(frame: pd.DataFrame, source: str = "<targets>") -> Targets:
         try:
             v = float(text)
         except ValueError:
-            p.add(f"row {i + 2}, column {col!r}", f"{text!r} is not a number")
+            p.add(f"row {i + first}, column {col!r}", f"{text!r} is not a number")
             return math.nan
         if not math.isfinite(v) or v < lo or v > hi or (lo_open and v <= lo):
             rng = f"({lo}, {hi}]" if lo_open else f"[{lo}, {hi}]"
-            p.add(f"row {i + 2}, column {col!r}", f"{v} is out of range {rng}")
+            p.add(f"row {i + first}, column {col!r}", f"{v} is out of range {rng}")
         return v
 
     for i in range(n):
-        row = f"row {i + 2}"  # the header is line 1 of the file
+        row = f"row {i + first}"  # rows are counted as lines of the file
         name = get("name", i)
         if not name:
             p.add(f"{row}, column 'name'", "empty name")
         elif name in seen:
             p.add(f"{row}, column 'name'", f"duplicate name {name!r} (first at row {seen[name]})")
         else:
-            seen[name] = i + 2
+            seen[name] = i + first
         names.append(name)
         for col, hours, lo, hi, key in (("ra", True, 0.0, 360.0, "ra"), ("dec", False, -90, 90, "dec")):
             try:

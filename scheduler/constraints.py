@@ -20,7 +20,7 @@ from scheduler.ephemeris import apparent_places
 from scheduler.horizon import mask_altitude
 from scheduler.model import ArrayModel, Beams, Limits
 from scheduler.night import Night
-from scheduler.sky import altaz, enu_from_cirs, separation
+from scheduler.sky import altaz, enu_from_cirs, grid_enu, separation
 
 ARCSEC = np.pi / (180.0 * 3600.0)
 
@@ -82,6 +82,17 @@ class SkyContext:
         return f"delay range: {names[high]} at its maximum while {names[low]} at its minimum"
 
 
+    def short_reason(self, code: int) -> str:
+        """A few words for tables: ``delay rail-5/rail-6``, ``horizon jasper``."""
+        if code >= DELAY_BASE:
+            high, low = divmod(code - DELAY_BASE, len(self.beams))
+            return f"delay {self.beams.line_names[high]}/{self.beams.line_names[low]}"
+        if code >= HORIZON_BASE:
+            return f"horizon {self.beams.station_names[code - HORIZON_BASE]}"
+        return {OK: "-", LOW: "altitude", HIGH: "zenith limit", SUN: "Sun", MOON: "Moon",
+                TIME_WINDOW: "time window"}[code]  # fmt: skip
+
+
 @dataclass(frozen=True, eq=False)
 class Evaluation:
     """Geometry and verdict for broadcast (target, time) pairs."""
@@ -104,8 +115,20 @@ def evaluate(ctx: SkyContext, idx, t_s) -> Evaluation:
     """Evaluate every constraint for targets ``idx`` at times ``t_s`` (broadcast)."""
     idx = np.asarray(idx, int)
     t = np.asarray(t_s, float)
-    lim, m = ctx.limits, ctx.margins
     e, n, u = enu_from_cirs(ctx.ri_rad[idx], ctx.di_rad[idx], ctx.night.frame, t)
+    return _judge(ctx, idx, t, e, n, u)
+
+
+def evaluate_grid(ctx: SkyContext, t_s) -> Evaluation:
+    """Every target at every time of ``t_s``: arrays of shape (N, T), by the matrix form
+    of the fast path."""
+    t = np.asarray(t_s, float)
+    e, n, u = grid_enu(ctx.ri_rad, ctx.di_rad, ctx.night.frame, t)
+    return _judge(ctx, np.arange(len(ctx.targets))[:, None], t[None, :], e, n, u)
+
+
+def _judge(ctx: SkyContext, idx, t, e, n, u) -> Evaluation:
+    lim, m = ctx.limits, ctx.margins
     alt, az = altaz(e, n, u)
     pds = projected_path(ctx.beams, e, n, u)
     span = offset_span(ctx.beams, pds)
@@ -133,3 +156,16 @@ def evaluate(ctx: SkyContext, idx, t_s) -> Evaluation:
     with np.errstate(invalid="ignore"):
         mark(timed & ((t < ws) | (t > we)), TIME_WINDOW)
     return Evaluation(e, n, u, alt, az, pds, span, code)
+
+
+def category(code: int) -> str:
+    """Coarse family of a reason code: open, altitude, horizon, delay, moon or time."""
+    if code == OK:
+        return "open"
+    if code in (LOW, HIGH):
+        return "altitude"
+    if code == MOON:
+        return "moon"
+    if code in (SUN, TIME_WINDOW):
+        return "time"
+    return "horizon" if code < DELAY_BASE else "delay"

@@ -86,3 +86,9 @@ def body_track(name: str, site: Site, t_start_s: float, t_end_s: float, step_s: 
     xyz = cirs.cartesian.xyz.to_value(u.one if cirs.cartesian.xyz.unit == u.one else u.m).T
     xyz = xyz / np.linalg.norm(xyz, axis=-1, keepdims=True)
     return BodyTrack(name, t_nodes, xyz)
+
+
+def local_sidereal_time(site: Site, t_s: float) -> float:
+    """Local apparent sidereal time (rad) at ``t_s`` (astropy, IAU 2006 model)."""
+    lst = to_time(t_s).sidereal_time("apparent", longitude=site.longitude_rad * u.rad)
+    return float(lst.to_value(u.rad))

@@ -16,10 +16,10 @@ from dataclasses import dataclass
 import numpy as np
 
 from scheduler.bodies import BodyTrack, illuminated_fraction
-from scheduler.ephemeris import body_track, earth_frame
+from scheduler.ephemeris import body_track, earth_frame, local_sidereal_time
 from scheduler.errors import InputError, Problem
 from scheduler.model import ArrayModel, Site
-from scheduler.sky import EarthFrame, altaz
+from scheduler.sky import ERA_RATE_RAD_S, EarthFrame, altaz
 
 DAY_S = 86400.0
 SEARCH_STEP_S = 120.0
@@ -41,6 +41,14 @@ class Night:
     frame: EarthFrame
     sun: BodyTrack
     moon: BodyTrack
+    lst_ref_rad: float = 0.0  # local apparent sidereal time at frame.t_ref_s
+
+    def lst_rad(self, t_s) -> np.ndarray:
+        """Local apparent sidereal time (rad), advancing at the sidereal rate."""
+        return np.mod(
+            self.lst_ref_rad + ERA_RATE_RAD_S * (np.asarray(t_s, float) - self.frame.t_ref_s),
+            2 * np.pi,
+        )
 
     @property
     def duration_s(self) -> float:
@@ -107,7 +115,8 @@ def find_night(array: ArrayModel, date: dt.date) -> Night:
     run = next(((a, b) for a, b in runs if a <= mid <= b), max(runs, key=lambda r: r[1] - r[0]))
     start = t[run[0]] if run[0] == 0 else _edge(dark, t[run[0] - 1], t[run[0]])
     end = t[run[1]] if run[1] == len(t) - 1 else _edge(dark, t[run[1] + 1], t[run[1]])
-    return Night(date, float(start), float(end), frame, sun, moon)
+    lst = local_sidereal_time(site, frame.t_ref_s)
+    return Night(date, float(start), float(end), frame, sun, moon, lst)
 
 
 def _edge(dark, t_light: float, t_dark: float) -> float:

@@ -90,7 +90,7 @@ def hour_angle(ri_rad, frame: EarthFrame, t_s) -> np.ndarray:
 
 def altaz(e, n, u):
     """Altitude and azimuth (north through east, in [0, 2 pi)) of ENU vectors."""
-    alt = np.arctan2(u, np.hypot(e, n))
+    alt = np.arcsin(np.clip(u, -1.0, 1.0))
     az = np.mod(np.arctan2(e, n), 2.0 * np.pi)
     return alt, az
 
@@ -119,3 +119,39 @@ def enu_rate(e, n, u, lat_rad):
     cl, sl = np.cos(lat_rad), np.sin(lat_rad)
     w = OMEGA_EARTH_RAD_S
     return -w * (cl * u - sl * n), -w * (sl * e), w * (cl * e)
+
+
+def horizon_matrices(frame: EarthFrame, t_s) -> np.ndarray:
+    """3 x 3 matrices (T, 3, 3) taking CIRS Cartesian directions to ENU at times
+    ``t_s``, before diurnal aberration: the same steps as :func:`enu_from_cirs`
+    (rotation by the local Earth rotation angle, polar motion to first order, then the
+    local horizon), written as one linear map per instant."""
+    theta = frame.local_era(np.atleast_1d(t_s))
+    c, s = np.cos(theta), np.sin(theta)
+    zero, one = np.zeros_like(c), np.ones_like(c)
+    rz = np.stack([np.stack([c, s, zero], -1), np.stack([-s, c, zero], -1),
+                   np.stack([zero, zero, one], -1)], -2)  # fmt: skip
+    xp, yp = frame.xpl_rad, frame.ypl_rad
+    pm = np.array([[1.0, 0.0, xp], [0.0, 1.0, -yp], [-xp, yp, 1.0]])
+    sphi, cphi = np.sin(frame.latitude_rad), np.cos(frame.latitude_rad)
+    to_enu = np.array([[0.0, 1.0, 0.0], [-sphi, 0.0, cphi], [cphi, 0.0, sphi]])
+    return to_enu @ pm @ rz
+
+
+def grid_enu(ri_rad, di_rad, frame: EarthFrame, t_s):
+    """ENU unit vectors on a targets x times grid, shape (N, T) each: the fast path in
+    matrix form (one matrix product per component instead of trigonometry per point).
+    Agrees with :func:`enu_from_cirs` to about 1e-12 rad."""
+    cd = np.cos(di_rad)
+    v = np.stack([cd * np.cos(ri_rad), cd * np.sin(ri_rad), np.sin(di_rad)], -1)  # (N, 3)
+    a = horizon_matrices(frame, t_s)  # (T, 3, 3)
+    theta = frame.local_era(np.atleast_1d(t_s))
+    # y of the (-HA, Dec) frame is row 1 of rz (polar motion changes it only at 1e-6 * z)
+    y_row = np.stack([-np.sin(theta), np.cos(theta), -frame.ypl_rad * np.ones_like(theta)], -1)
+    ab = frame.diurab_rad
+    f = 1.0 - ab * (v @ y_row.T)  # (N, T)
+    shift = ab * np.array([1.0, 0.0, 0.0])  # the ab * y-hat step lands on east
+    e = f * (v @ a[:, 0, :].T + shift[0])
+    n = f * (v @ a[:, 1, :].T + shift[1])
+    u = f * (v @ a[:, 2, :].T + shift[2])
+    return e, n, u

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from scheduler.constraints import OK, SkyContext, evaluate
+from scheduler.constraints import HIGH, LOW, OK, SkyContext, evaluate, evaluate_grid
 
 GRID_STEP_S = 60.0
 BISECTIONS = 7  # 60 s / 2**7 < 0.5 s
@@ -36,19 +36,22 @@ class TargetWindows:
         return tuple((a, b - duration_s) for a, b in self.observable if b - a >= duration_s)
 
     def main_reason(self) -> int:
-        """The reason code that excludes the most time (OK if nothing is excluded)."""
+        """What limits the target most: the reason that excludes the most time, not
+        counting the altitude limit unless nothing else excludes any (OK if nothing is
+        excluded at all)."""
         lost: dict[int, float] = {}
         for a, b, code in self.excluded:
             lost[code] = lost.get(code, 0.0) + b - a
-        return max(lost, key=lost.get) if lost else OK
+        other = {c: v for c, v in lost.items() if c not in (LOW, HIGH)}
+        pool = other or lost
+        return max(pool, key=pool.get) if pool else OK
 
 
 def observable_windows(ctx: SkyContext, step_s: float = GRID_STEP_S) -> list[TargetWindows]:
     """Windows of every target in the context's catalog over its night."""
     t = ctx.night.grid(step_s)
     count = len(ctx.targets)
-    idx = np.arange(count)
-    code = evaluate(ctx, idx[:, None], t[None, :]).code  # (N, T)
+    code = evaluate_grid(ctx, t).code  # (N, T)
     # every change of verdict between neighbouring samples, located by bisection
     tgt, col = np.nonzero(code[:, 1:] != code[:, :-1])
     left, right = t[col].copy(), t[col + 1].copy()

@@ -1,0 +1,124 @@
+"""The ``opdplan`` command line.
+
+Parses arguments, calls one command module, prints its view or JSON.  Bad input of any
+kind ends with one line per problem on standard error and exit status 2, never a
+traceback and never a partial output file.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from scheduler.errors import InputError, Problem
+
+DEMO_NIGHT = "2027-04-18"
+DEMO_CONFIG = "long"
+
+
+def _parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="opdplan",
+        description="Plan nights at a long-baseline optical interferometer (advisory).",
+    )
+    sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
+
+    def common(sp, targets=True):
+        sp.add_argument("--array", required=True, help="array file (TOML)")
+        sp.add_argument("--config", required=True, help="configuration name in the array file")
+        if targets:
+            sp.add_argument("--targets", required=True, help="target catalog (CSV, ECSV, VOTable)")
+        sp.add_argument("--night", required=True, help="local date of the evening, YYYY-MM-DD")
+        sp.add_argument("--json", action="store_true", help="print JSON instead of the view")
+
+    w = sub.add_parser("windows", help="observable windows of every target tonight")
+    common(w)
+
+    d = sub.add_parser("delays", help="carriage positions through the night for one target")
+    common(d, targets=False)
+    d.add_argument("--ra", help="right ascension (ICRS): degrees or hh:mm:ss.s")
+    d.add_argument("--dec", help="declination (ICRS): degrees or +dd:mm:ss")
+    d.add_argument("--target", help="target name in --targets")
+    d.add_argument("--targets", help="target catalog, with --target")
+    d.add_argument("--step-min", type=float, default=10.0, help="sample spacing (minutes)")
+
+    sub.add_parser("demo", help="run the fictional demo scenario end to end")
+    return p
+
+
+def _windows(args, console):
+    from scheduler.commands import windows_cmd
+    from scheduler.commands.common import load_inputs
+
+    inputs = load_inputs(args.array, args.config, args.targets, args.night)
+    return windows_cmd.run(inputs, args.json)
+
+
+def _delays(args, console):
+    from scheduler.catalog import load_targets
+    from scheduler.commands import delays_cmd
+    from scheduler.commands.common import load_inputs
+
+    if args.target is not None:
+        if args.targets is None:
+            raise InputError(Problem("--target", "", "needs --targets FILE to look the name up"))
+        targets = load_targets(args.targets)
+        try:
+            index = targets.index(args.target)
+        except KeyError as exc:
+            raise InputError(Problem("--target", "", exc.args[0])) from None
+    elif args.ra is not None and args.dec is not None:
+        targets, index = delays_cmd.coordinate_target(args.ra, args.dec), 0
+    else:
+        raise InputError(Problem("delays", "", "give --ra and --dec, or --target with --targets"))
+    if not 0.0 < args.step_min <= 240.0:
+        raise InputError(Problem("--step-min", "", f"{args.step_min} is not in (0, 240]"))
+    inputs = load_inputs(args.array, args.config, targets, args.night)
+    return delays_cmd.run(inputs, index, args.step_min * 60.0, args.json)
+
+
+def _demo(args, console):
+    from scheduler.commands import windows_cmd
+    from scheduler.commands.common import demo_file, load_inputs
+
+    console.print(
+        "[bold]opdplan demo[/bold]: a fictional site and array (catalogs/demo_array.toml) "
+        f"and catalog (catalogs/demo_targets.csv), night of {DEMO_NIGHT}, "
+        f"configuration {DEMO_CONFIG}."
+    )
+    inputs = load_inputs(
+        demo_file("demo_array.toml"), DEMO_CONFIG, demo_file("demo_targets.csv"), DEMO_NIGHT
+    )
+    return windows_cmd.run(inputs, False)
+
+
+COMMANDS = {"windows": _windows, "delays": _delays, "demo": _demo}
+
+
+def main(argv: list[str] | None = None) -> int:
+    args = _parser().parse_args(argv)
+    from rich.console import Console
+
+    from scheduler.commands.common import print_json
+    from scheduler.views.caution import Caution
+
+    console = Console()
+    try:
+        result = COMMANDS[args.command](args, console)
+    except InputError as exc:
+        for problem in exc.problems:
+            print(f"opdplan: error: {problem}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("opdplan: interrupted", file=sys.stderr)
+        return 130
+    if isinstance(result, dict):
+        print_json(result)
+    else:
+        console.print(result)
+        console.print(Caution())
+    return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

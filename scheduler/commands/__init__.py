@@ -1,0 +1,1 @@
+"""One module per command; each turns parsed arguments into results and views."""

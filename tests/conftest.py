@@ -1,0 +1,39 @@
+"""Shared helpers for the numerical-core tests.
+
+``import scheduler`` comes first: it configures astropy to stay offline (no IERS
+downloads) before any test module builds a Time or a transform.
+"""
+
+import numpy as np
+import pytest
+
+import scheduler  # noqa: F401  (offline astropy configuration; must come first)
+from scheduler.model import Beams
+
+
+def build_beams(positions_enu_m, path_m=None, opd_min_m=None, opd_max_m=None, rate_m_s=None):
+    """A :class:`Beams` of invented test lines, one per station position (L x 3)."""
+    p = np.asarray(positions_enu_m, float).reshape(-1, 3)
+    count = len(p)
+
+    def col(value, default):
+        return np.broadcast_to(np.asarray(default if value is None else value, float), (count,)).copy()
+
+    return Beams(
+        configuration="test",
+        line_names=tuple(f"line-{i}" for i in range(count)),
+        station_names=tuple(f"pad-{i}" for i in range(count)),
+        position_enu_m=p,
+        internal_path_m=col(path_m, 0.0),
+        fixed_offset_m=np.zeros(count),
+        opd_min_m=col(opd_min_m, 0.0),
+        opd_max_m=col(opd_max_m, 120.0),
+        rate_m_s=col(rate_m_s, 1.0),
+        horizons=tuple(() for _ in range(count)),
+    )
+
+
+@pytest.fixture
+def make_beams():
+    """Factory fixture: ``make_beams(positions, path_m=..., opd_min_m=..., ...)``."""
+    return build_beams
