@@ -46,7 +46,9 @@ class _Reader:
     def __init__(self, problems: ProblemList):
         self.p = problems
 
-    def keys(self, table: Any, where: str, required: set[str], optional: set[str] = set()):
+    def keys(
+        self, table: Any, where: str, required: set[str], optional: frozenset[str] = frozenset()
+    ):
         if not isinstance(table, dict):
             self.p.add(where, f"must be a table, got {type(table).__name__}")
             return False
@@ -61,7 +63,11 @@ class _Reader:
         if key not in table:
             return math.nan if default is None else default
         value = table[key]
-        if isinstance(value, bool) or not isinstance(value, int | float) or not math.isfinite(value):
+        if (
+            isinstance(value, bool)
+            or not isinstance(value, int | float)
+            or not math.isfinite(value)
+        ):
             self.p.add(f"{where}.{key}", f"must be a finite number, got {value!r}")
             return math.nan
         return float(value)
@@ -115,7 +121,9 @@ def parse_array(data: dict, source: str = "<array>") -> ArrayModel:
     ]
     r.unique([c.name for c in configs], "configurations")
     problems.raise_if_any()
-    return ArrayModel(site, limits, overheads, tuple(stations), tuple(lines), tuple(configs), source)
+    return ArrayModel(
+        site, limits, overheads, tuple(stations), tuple(lines), tuple(configs), source
+    )
 
 
 def _list(data: dict, key: str, r: _Reader) -> list:

@@ -12,7 +12,7 @@ import io
 import math
 import re
 from dataclasses import dataclass
-from datetime import datetime, timezone
+from datetime import UTC, datetime
 from pathlib import Path
 
 import numpy as np
@@ -115,7 +115,7 @@ def parse_utc(text: str) -> float:
     """POSIX seconds from an ISO 8601 UTC string (a trailing ``Z`` or offset allowed)."""
     dt = datetime.fromisoformat(str(text).strip().replace("Z", "+00:00"))
     if dt.tzinfo is None:
-        dt = dt.replace(tzinfo=timezone.utc)
+        dt = dt.replace(tzinfo=UTC)
     return dt.timestamp()
 
 
@@ -129,12 +129,16 @@ def read_table(path: str | Path) -> pd.DataFrame:
         if suffix in (".csv", ".txt"):
             lines = path.read_text(encoding="utf-8").splitlines(keepends=True)
             skip = next((k for k, ln in enumerate(lines) if not ln.startswith("#")), len(lines))
-            frame = pd.read_csv(io.StringIO("".join(lines[skip:])), dtype=str, keep_default_na=False)
+            frame = pd.read_csv(
+                io.StringIO("".join(lines[skip:])), dtype=str, keep_default_na=False
+            )
             frame.attrs["header_line"] = skip + 1
             return frame
         from astropy.table import Table
 
-        fmt = "ascii.ecsv" if suffix == ".ecsv" else "votable" if suffix in (".xml", ".vot") else None
+        fmt = (
+            "ascii.ecsv" if suffix == ".ecsv" else "votable" if suffix in (".xml", ".vot") else None
+        )
         table = Table.read(path, format=fmt) if fmt else Table.read(path)
         frame = table.to_pandas()
         return frame.astype(object).where(frame.notna(), "").astype(str)
@@ -204,7 +208,10 @@ def parse_targets(frame: pd.DataFrame, source: str = "<targets>") -> Targets:
         else:
             seen[name] = i + first
         names.append(name)
-        for col, hours, lo, hi, key in (("ra", True, 0.0, 360.0, "ra"), ("dec", False, -90, 90, "dec")):
+        for col, hours, lo, hi, key in (
+            ("ra", True, 0.0, 360.0, "ra"),
+            ("dec", False, -90, 90, "dec"),
+        ):
             try:
                 v = parse_angle(get(col, i), hours)
                 if not (lo <= v < hi if col == "ra" else lo <= v <= hi):

@@ -81,7 +81,6 @@ class SkyContext:
         names = self.beams.line_names
         return f"delay range: {names[high]} at its maximum while {names[low]} at its minimum"
 
-
     def short_reason(self, code: int) -> str:
         """A few words for tables: ``delay rail-5/rail-6``, ``horizon jasper``."""
         if code >= DELAY_BASE:

@@ -22,9 +22,7 @@ def projected_path(beams: Beams, e, n, u) -> np.ndarray:
     """``p_i . s`` in metres, shape ``(L,) + broadcast(e, n, u).shape``."""
     p = beams.position_enu_m
     shape = (len(beams),) + (1,) * np.ndim(e)
-    return (
-        p[:, 0].reshape(shape) * e + p[:, 1].reshape(shape) * n + p[:, 2].reshape(shape) * u
-    )
+    return p[:, 0].reshape(shape) * e + p[:, 1].reshape(shape) * n + p[:, 2].reshape(shape) * u
 
 
 @dataclass(frozen=True, eq=False)

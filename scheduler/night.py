@@ -79,7 +79,7 @@ def parse_night(text: str, source: str = "--night") -> dt.date:
 
 def local_noon_s(date: dt.date, site: Site) -> float:
     """POSIX time of local mean noon on ``date`` at the site's longitude."""
-    midnight = dt.datetime(date.year, date.month, date.day, tzinfo=dt.timezone.utc).timestamp()
+    midnight = dt.datetime(date.year, date.month, date.day, tzinfo=dt.UTC).timestamp()
     return midnight + 43200.0 - np.degrees(site.longitude_rad) / 15.0 * 3600.0
 
 

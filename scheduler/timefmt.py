@@ -13,13 +13,13 @@ import numpy as np
 
 def iso_utc(t_s: float) -> str:
     """``2027-04-19T02:00:00Z`` for POSIX seconds (rounded to the second)."""
-    t = dt.datetime.fromtimestamp(round(float(t_s)), tz=dt.timezone.utc)
+    t = dt.datetime.fromtimestamp(round(float(t_s)), tz=dt.UTC)
     return t.strftime("%Y-%m-%dT%H:%M:%SZ")
 
 
 def hhmm(t_s: float) -> str:
     """``HH:MM`` UTC."""
-    return dt.datetime.fromtimestamp(round(float(t_s)), tz=dt.timezone.utc).strftime("%H:%M")
+    return dt.datetime.fromtimestamp(round(float(t_s)), tz=dt.UTC).strftime("%H:%M")
 
 
 def hours_label(angle_rad: float) -> str:

@@ -30,7 +30,12 @@ def test_parse_angle(text, hours, degrees):
 
 
 def frame(**cols):
-    base = {"name": ["a", "b"], "ra": ["10", "20"], "dec": ["-10", "-20"], "duration_min": ["30", "10"]}
+    base = {
+        "name": ["a", "b"],
+        "ra": ["10", "20"],
+        "dec": ["-10", "-20"],
+        "duration_min": ["30", "10"],
+    }
     base.update(cols)
     return pd.DataFrame(base)
 
@@ -68,7 +73,9 @@ def test_each_problem_is_named(label, cols, expected):
 
 
 def test_missing_column_and_many_problems():
-    assert problems(frame().drop(columns=["dec"])) == ["t.csv: column 'dec': missing required column"]
+    assert problems(frame().drop(columns=["dec"])) == [
+        "t.csv: column 'dec': missing required column"
+    ]
     assert len(problems(frame(ra=["400", "x"], dec=["100", "0"]))) == 3
 
 

@@ -46,7 +46,8 @@ class DelaysView:
             )  # fmt: skip
         yield table
         yield Text(
-            "Optical path each line adds, in metres (JSON gives micrometres), with the common constant centred in its feasible "
-            "span (every carriage as far from its ends as the geometry allows).",
+            "Optical path each line adds, in metres (JSON gives micrometres), with the "
+            "common constant centred in its feasible span (every carriage as far from "
+            "its ends as the geometry allows).",
             style="dim",
         )

@@ -73,7 +73,9 @@ class WindowsView:
         table.add_column(head, no_wrap=True, min_width=self.axis.cells)
         for r in self.rows:
             hours = Text(f"{r.hours:4.1f}", style="bold green" if r.hours > 0 else "red")
-            table.add_row(r.name, r.kind, r.program, hours, r.limited_by, bar(self.axis, r.segments))
+            table.add_row(
+                r.name, r.kind, r.program, hours, r.limited_by, bar(self.axis, r.segments)
+            )
         yield table
         legend = Text("  ")
         for glyph, style, label in GLYPHS.values():

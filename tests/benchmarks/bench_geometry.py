@@ -36,7 +36,9 @@ def bench_array():
     data = {
         "site": {"name": "bench", "latitude_deg": -26.1, "longitude_deg": -66.2, "height_m": 3050},
         "stations": stations, "delay_lines": lines,
-        "configurations": [{"name": "all", "feeds": {f"line{k}": f"pad{k}" for k in range(N_LINES)}}],
+        "configurations": [
+            {"name": "all", "feeds": {f"line{k}": f"pad{k}" for k in range(N_LINES)}}
+        ],
     }  # fmt: skip
     return parse_array(data, "bench")
 
