@@ -15,6 +15,9 @@ iers.conf.auto_download = False
 iers.conf.auto_max_age = None
 iers.conf.iers_degraded_accuracy = "ignore"
 
+# past the bundled tables astropy falls back to mean polar motion and says so each time
+warnings.filterwarnings("ignore", message="Tried to get polar motions for times after IERS")
+
 try:  # erfa warns about "dubious year" for dates past its leap-second table
     from erfa import ErfaWarning
 

@@ -1,9 +1,11 @@
 """Sun and Moon over a night: directions sampled at nodes and interpolated.
 
 Pure numpy.  :mod:`scheduler.ephemeris` samples each body's CIRS direction with astropy
-at nodes an hour or two apart; between nodes the unit vector is interpolated linearly
-and renormalised (the Moon moves about 0.5 deg an hour, so the chord error is a few
-arcseconds) and rotated to the horizon by the same fast path as the targets.
+at nodes (every 20 minutes for the Moon, 3 hours for the Sun); between nodes the unit
+vector is interpolated linearly and renormalised (the topocentric Moon's parallax
+turns with the Earth, so the chord error is some tens of arcseconds at hourly nodes and
+a few at 20 minutes, far inside any Moon-distance limit) and rotated to the horizon by
+the same fast path as the targets.
 """
 
 from __future__ import annotations

@@ -18,7 +18,7 @@ from scheduler.catalog import Targets
 from scheduler.delay import OffsetSpan, offset_span, projected_path
 from scheduler.ephemeris import apparent_places
 from scheduler.horizon import mask_altitude
-from scheduler.model import ArrayModel, Beams, Limits
+from scheduler.model import ArrayModel, Beams, Limits, Overheads
 from scheduler.night import Night
 from scheduler.sky import altaz, enu_from_cirs, grid_enu, separation
 
@@ -50,6 +50,7 @@ class SkyContext:
     ri_rad: np.ndarray
     di_rad: np.ndarray
     margins: Margins = Margins()
+    array_overheads: Overheads = Overheads()
 
     @classmethod
     def prepare(
@@ -57,7 +58,7 @@ class SkyContext:
         margins: Margins = Margins(),
     ) -> SkyContext:  # fmt: skip
         ri, di = apparent_places(targets, night.frame.t_ref_s)
-        return cls(night, beams, targets, array.limits, ri, di, margins)
+        return cls(night, beams, targets, array.limits, ri, di, margins, array.overheads)
 
     def reason(self, code: int) -> str:
         """Words for a reason code."""

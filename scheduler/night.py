@@ -94,7 +94,7 @@ def find_night(array: ArrayModel, date: dt.date) -> Night:
     noon = local_noon_s(date, site)
     frame = earth_frame(site, noon + 0.5 * DAY_S)
     sun = body_track("sun", site, noon - 3600.0, noon + DAY_S + 3600.0, 3 * 3600.0)
-    moon = body_track("moon", site, noon - 3600.0, noon + DAY_S + 3600.0, 3600.0)
+    moon = body_track("moon", site, noon - 3600.0, noon + DAY_S + 3600.0, 1200.0)
     limit = array.limits.sun_altitude_max_rad
 
     def dark(t):

@@ -17,7 +17,8 @@ def build_beams(positions_enu_m, path_m=None, opd_min_m=None, opd_max_m=None, ra
     count = len(p)
 
     def col(value, default):
-        return np.broadcast_to(np.asarray(default if value is None else value, float), (count,)).copy()
+        value = default if value is None else value
+        return np.broadcast_to(np.asarray(value, float), (count,)).copy()
 
     return Beams(
         configuration="test",

@@ -7,6 +7,7 @@ TMS = Thompson, Moran & Swenson, Interferometry and Synthesis in Radio Astronomy
 
 import numpy as np
 import pytest
+from conftest import build_beams
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
@@ -21,8 +22,6 @@ from scheduler.delay import (
     uvw,
 )
 from scheduler.sky import OMEGA_EARTH_RAD_S, enu_from_hadec
-
-from conftest import build_beams
 
 # --- tolerances --------------------------------------------------------------------
 UVW_TABLE_TOL_M = 1e-4  # TMS table values are given to 4 decimals
@@ -193,7 +192,7 @@ def test_offset_span_limiting_lines(problem):
 
 def test_offset_span_vectorised_over_times():
     """offset_span over an (L, T) array of projected paths equals column-by-column
-    calls (invented test array and directions)."""
+    calls (internal consistency, no outside source; invented test array)."""
     rng = np.random.default_rng(3)
     beams = build_beams(rng.uniform(-150, 150, (4, 3)), rng.uniform(0, 100, 4), 0.0, 80.0)
     ha = np.linspace(-1.5, 1.5, 25)
@@ -208,7 +207,7 @@ def test_offset_span_vectorised_over_times():
 # --- facts of the trade (common practice, no source) -----------------------------
 
 RAIL_ARRAY = {
-    "site": {"name": "test site", "latitude_deg": -26.1, "longitude_deg": -66.2, "height_m": 3050.0},
+    "site": {"name": "test site", "latitude_deg": -26.1, "longitude_deg": -66.2, "height_m": 3050},
     "stations": [
         {"name": "pad-a", "east_m": 0.0, "north_m": 0.0, "up_m": 0.0, "internal_path_m": 40.0},
         {"name": "pad-b", "east_m": 200.0, "north_m": 0.0, "up_m": 0.0, "internal_path_m": 40.0},

@@ -15,14 +15,13 @@ import pytest
 from astropy.coordinates import AltAz, HADec, SkyCoord
 from astropy.time import Time
 from astropy.utils.exceptions import AstropyWarning
+from conftest import build_beams
 
 import scheduler  # noqa: F401  (offline astropy first)
 from scheduler.delay import projected_path
 from scheduler.ephemeris import earth_frame, location, radec_places, to_time
 from scheduler.model import Site
 from scheduler.sky import altaz, enu_from_cirs, hour_angle, separation
-
-from conftest import build_beams
 
 # --- tolerances --------------------------------------------------------------------
 ARCSEC_RAD = np.pi / (180.0 * 3600.0)

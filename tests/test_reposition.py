@@ -84,7 +84,7 @@ def test_unequal_rates_hand_example():
 @given(st.integers(2, 6), st.integers(1, 40), st.integers(0, 2**32 - 1))
 def test_vectorised_batch_equals_single_calls(count, batch, seed):
     """A batch of transitions (B, L) gives the same dK and move as one call per
-    transition (random invented test data)."""
+    transition (internal consistency, no outside source; random invented test data)."""
     rng = np.random.default_rng(seed)
     g = rng.uniform(-150, 150, (batch, count))
     r = rng.uniform(0.3, 2.0, count)

@@ -162,8 +162,8 @@ def test_meeus_13b_altaz_through_fast_path():
 
 def test_altaz_against_erfa_hd2ae():
     """enu_from_hadec + altaz against erfa.hd2ae (reference library, CHECKS.md
-    'Reference libraries') over a random grid of test hour angles, declinations and
-    latitudes (random numbers are invented test data)."""
+    'Reference libraries'; Meeus ch. 13 formulas) over a random grid of hour angles,
+    declinations and latitudes (random numbers are invented test data)."""
     rng = np.random.default_rng(20270418)
     ha = rng.uniform(-np.pi, np.pi, 500)
     dec = np.arcsin(rng.uniform(-1.0, 1.0, 500))

@@ -1,0 +1,153 @@
+"""Exact times and carriage paths for a sequence, compacted, with brackets repaired.
+
+The sequencers work with grid estimates; here every transition is recomputed with the
+exact fast-path geometry at the exact instants, each visit starts as early as its
+predecessor, its windows and its visit separation allow (compaction), and the common
+constant K is chosen per transition by the exact minimax move.  Science visits whose
+calibrator brackets no longer hold, and calibrators that serve nobody, are dropped and
+the sequence is timed again.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from scheduler.constraints import SkyContext, evaluate
+from scheduler.delay import line_paths
+from scheduler.plan_model import Candidate, PlanSettings, Visit
+from scheduler.transitions import transition
+
+TIME_PAD_S = 1.0  # seconds added to each exact transition, against rounding
+
+
+def _state(ctx: SkyContext, i: int, t: float):
+    ev = evaluate(ctx, np.array([i]), np.array([t]))
+    m = ctx.margins.delay_m
+    return ev, float(ev.span.low_m[0]) + m, float(ev.span.high_m[0]) - m
+
+
+def _exact(ctx, ia, ta, ib, tb):
+    ea, la, ha = _state(ctx, ia, ta)
+    eb, lb, hb = _state(ctx, ib, tb)
+    tr = transition(ctx.beams, ctx.array_overheads, ea.alt_rad[0], ea.az_rad[0], ea.pds_m[:, 0],
+                    la, ha, eb.alt_rad[0], eb.az_rad[0], eb.pds_m[:, 0], lb, hb)  # fmt: skip
+    return tr, (la, ha), (lb, hb)
+
+
+def time_sequence(
+    ctx: SkyContext, seq: list[tuple[Candidate, float]], compact: bool = True
+) -> list[tuple[Candidate, float, object]]:
+    """Exact start of each visit: [(candidate, start, transition or None)]; visits that
+    no longer fit in their windows are left out."""
+    out = []
+    prev = None
+    last_end: dict[int, float] = {}
+    targets = ctx.targets
+    for cand, hint in seq:
+        ready = last_end.get(cand.target, -np.inf) + targets.min_separation_s[cand.target]
+        lo = ready if compact else max(ready, hint)
+        if prev is None:
+            first = ctx.night.start_s + ctx.array_overheads.acquisition_s
+            start, tr = cand.earliest_start(max(lo, first)), None
+        else:
+            pc, pend = prev
+            start = cand.earliest_start(max(lo, pend + ctx.array_overheads.acquisition_s))
+            tr = None
+            for attempt in range(6):
+                if start is None:
+                    break
+                tr, _, _ = _exact(ctx, pc.target, pend, cand.target, start)
+                need = pend + float(tr.total_s) + TIME_PAD_S
+                if need <= start:
+                    break
+                start = cand.earliest_start(need + attempt * TIME_PAD_S)
+            else:
+                start = None
+        if start is None:
+            continue
+        out.append((cand, start, tr))
+        prev = (cand, start + cand.duration_s)
+        last_end[cand.target] = start + cand.duration_s
+    return out
+
+
+def brackets(timed, targets, suits: np.ndarray, gap_s: float) -> dict[str, tuple[str, str] | None]:
+    """For each science visit that needs calibrators: the (before, after) calibrator
+    visit ids, nearest in time, or None if either is missing."""
+    out = {}
+    cals = [(c, st) for c, st, _ in timed if c.value == 0]
+    for c, st, _ in timed:
+        if c.value == 0 or not targets.needs_calibrator[c.target]:
+            continue
+        end = st + c.duration_s
+        before = [
+            (st - (cs + k.duration_s), k.id)
+            for k, cs in cals
+            if suits[c.target, k.target] and 0 <= st - (cs + k.duration_s) <= gap_s
+        ]
+        after = [(cs - end, k.id) for k, cs in cals
+                 if suits[c.target, k.target] and 0 <= cs - end <= gap_s]  # fmt: skip
+        out[c.id] = (min(before)[1], min(after)[1]) if before and after else None
+    return out
+
+
+def settle_sequence(ctx, seq, targets, suits, s: PlanSettings, compact: bool = True):
+    """Time exactly, then drop broken brackets and idle calibrators until stable."""
+    seq = list(seq)
+    for _ in range(len(seq) + 1):
+        timed = time_sequence(ctx, seq, compact)
+        br = brackets(timed, targets, suits, s.calibrator_gap_s)
+        used = {cid for pair in br.values() if pair for cid in pair}
+        keep_ids = {c.id for c, _, _ in timed if c.value > 0 and br.get(c.id, ()) is not None}
+        keep_ids |= {c.id for c, _, _ in timed if c.value == 0 and c.id in used}
+        if len(keep_ids) == len(timed):
+            return timed, br
+        seq = [(c, st) for c, st, _ in timed if c.id in keep_ids]
+    return timed, br
+
+
+def to_visits(ctx: SkyContext, timed, br) -> list[Visit]:
+    """Visits with carriage paths: K at each end of a transition from its minimax
+    shift, kept mid-way in the span that allows it."""
+    n = len(timed)
+    k_start = [0.0] * n
+    k_end = [0.0] * n
+    for j, (cand, st, tr) in enumerate(timed):
+        if j == 0 or tr is None:
+            _, lo, hi = _state(ctx, cand.target, st)
+            k_start[j] = 0.5 * (lo + hi)
+            continue
+        pc, pst, _ = timed[j - 1]
+        _, (la, ha), (lb, hb) = _exact(ctx, pc.target, pst + pc.duration_s, cand.target, st)
+        dk = float(tr.dk_m)
+        lo, hi = max(la, lb - dk), min(ha, hb - dk)
+        k_end[j - 1] = 0.5 * (lo + hi) if lo <= hi else 0.5 * (la + ha)
+        k_start[j] = k_end[j - 1] + dk
+    if n:
+        c, st, _ = timed[-1]
+        _, lo, hi = _state(ctx, c.target, st + c.duration_s)
+        k_end[-1] = float(np.clip(k_start[-1], lo, hi))
+    served: dict[str, list[str]] = {}
+    for sci, pair in br.items():
+        for cid in pair or ():
+            served.setdefault(cid, []).append(sci)
+    visits = []
+    for j, (cand, st, tr) in enumerate(timed):
+        end = st + cand.duration_s
+        ev0, _, _ = _state(ctx, cand.target, st)
+        ev1, _, _ = _state(ctx, cand.target, end)
+        mid = evaluate(ctx, np.full(9, cand.target), np.linspace(st, end, 9))
+        x0 = line_paths(ctx.beams, ev0.pds_m[:, 0], k_start[j])
+        x1 = line_paths(ctx.beams, ev1.pds_m[:, 0], k_end[j])
+        slew = float(tr.slew_s) if tr is not None else 0.0
+        carriage = float(tr.carriage_s) if tr is not None else 0.0
+        acq = float(tr.acquisition_s) if tr is not None else ctx.array_overheads.acquisition_s
+        gap = st - (timed[j - 1][1] + timed[j - 1][0].duration_s) if j else acq
+        visits.append(Visit(
+            id=cand.id, target=cand.target, start_s=st, end_s=end, slew_s=slew,
+            carriage_s=carriage, acquisition_s=acq, transition_s=gap,
+            opd_start_m=tuple(float(v) for v in x0), opd_end_m=tuple(float(v) for v in x1),
+            alt_range_rad=(float(mid.alt_rad.min()), float(mid.alt_rad.max())),
+            calibrates=tuple(served.get(cand.id, ())),
+        ))  # fmt: skip
+    return visits
