@@ -42,6 +42,19 @@ def _parser() -> argparse.ArgumentParser:
     d.add_argument("--targets", help="target catalog, with --target")
     d.add_argument("--step-min", type=float, default=10.0, help="sample spacing (minutes)")
 
+    pl = sub.add_parser("plan", help="tonight's queue, verified independently")
+    common(pl)
+    pl.add_argument("--time-limit", type=float, default=20.0, help="seconds for the optimiser")
+    pl.add_argument("--seed", type=int, default=0)
+    pl.add_argument("--deterministic", action="store_true", help="same plan for the same seed")
+    pl.add_argument("--solver", choices=("optimize", "greedy"), default="optimize")
+    pl.add_argument("--out", help="write the plan (JSON, schema opdplan-plan/1) here")
+
+    v = sub.add_parser("verify", help="check a plan file against the array and catalog")
+    v.add_argument("plan")
+    v.add_argument("--array", required=True)
+    v.add_argument("--targets", required=True)
+
     sub.add_parser("demo", help="run the fictional demo scenario end to end")
     return p
 
@@ -92,7 +105,29 @@ def _demo(args, console):
     return windows_cmd.run(inputs, False)
 
 
-COMMANDS = {"windows": _windows, "delays": _delays, "demo": _demo}
+def _plan(args, console):
+    from scheduler.commands import plan_cmd
+    from scheduler.commands.common import load_inputs
+    from scheduler.plan_model import PlanSettings
+
+    if not 1.0 <= args.time_limit <= 3600.0:
+        raise InputError(Problem("--time-limit", "", f"{args.time_limit} is not in [1, 3600] s"))
+    settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
+                            deterministic=args.deterministic)  # fmt: skip
+    inputs = load_inputs(args.array, args.config, args.targets, args.night)
+    return plan_cmd.run(inputs, settings, args.solver, args.out, args.json)
+
+
+def _verify(args, console):
+    from scheduler.commands import plan_cmd
+
+    result = plan_cmd.verify_file(args.plan, args.array, args.targets)
+    args.exit_code = 0 if result["valid"] else 1
+    return result
+
+
+COMMANDS = {"windows": _windows, "delays": _delays, "plan": _plan, "verify": _verify,
+            "demo": _demo}  # fmt: skip
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -109,6 +144,9 @@ def main(argv: list[str] | None = None) -> int:
         for problem in exc.problems:
             print(f"opdplan: error: {problem}", file=sys.stderr)
         return 2
+    except RuntimeError as exc:  # a plan the verifier rejects is a bug: say so, write nothing
+        print(f"opdplan: internal error (please report): {exc}", file=sys.stderr)
+        return 3
     except KeyboardInterrupt:
         print("opdplan: interrupted", file=sys.stderr)
         return 130
@@ -117,7 +155,7 @@ def main(argv: list[str] | None = None) -> int:
     else:
         console.print(result)
         console.print(Caution())
-    return 0
+    return getattr(args, "exit_code", 0)
 
 
 if __name__ == "__main__":  # pragma: no cover

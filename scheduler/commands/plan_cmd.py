@@ -1,0 +1,73 @@
+"""``opdplan plan`` and ``opdplan verify``: the night queue, checked independently."""
+
+from __future__ import annotations
+
+import json
+
+from scheduler.array_file import load_array
+from scheduler.catalog import load_targets
+from scheduler.commands.common import Inputs
+from scheduler.errors import InputError, Problem
+from scheduler.plan_io import SCHEMA, plan_dict, write_plan
+from scheduler.plan_model import PlanSettings
+from scheduler.planner import plan_night
+from scheduler.timefmt import hhmm, hours_label
+from scheduler.verifier import verify_plan
+from scheduler.views.timeline_view import TimelineRow, TimelineView
+
+
+class PlanRejected(RuntimeError):
+    """The verifier found a broken rule in a plan opdplan made: a bug, never shown."""
+
+
+def run(inputs: Inputs, settings: PlanSettings, solver: str, out: str | None, as_json: bool):
+    ctx = inputs.context()
+    plan = plan_night(ctx, settings, solver)
+    doc = plan_dict(ctx, inputs.array, plan, settings)
+    problems = verify_plan(doc, inputs.array, inputs.targets)
+    if problems:
+        raise PlanRejected("the verifier rejected the plan: " + "; ".join(problems))
+    doc["summary"]["verified"] = True
+    if out:
+        write_plan(out, doc)
+    if as_json:
+        return doc
+    return timeline(ctx, plan, doc)
+
+
+def timeline(ctx, plan, doc) -> TimelineView:
+    t = ctx.targets
+    rows = []
+    for v, d in zip(plan.visits, doc["visits"], strict=True):
+        rows.append(TimelineRow(
+            hhmm(v.start_s), hhmm(v.end_s), hours_label(ctx.night.lst_rad(v.start_s)),
+            t.names[v.target], t.kind(v.target), t.program[v.target],
+            f"{d['altitude_deg'][0]:.0f}-{d['altitude_deg'][1]:.0f}", v.slew_s, v.carriage_s,
+            v.acquisition_s, ("calibrates " + ", ".join(v.calibrates)) if v.calibrates else "",
+        ))  # fmt: skip
+    s = doc["summary"]
+    summary = [f"science {s['science_hours']:.2f} h", f"value {s['weighted_value']:.2f}",
+               f"greedy {s['greedy_value']:.2f}", f"idle carriage {s['idle_carriage_s']:.0f} s",
+               f"solver {s['solver']}"]  # fmt: skip
+    if s.get("bound") is not None:
+        summary += [f"bound {s['bound']:.2f}", f"gap {s['gap']:.1%}"]
+    title = f"Queue for the night of {ctx.night.date} - configuration {ctx.beams.configuration}"
+    return TimelineView(title, rows, summary, list(plan.unscheduled))
+
+
+def verify_file(plan_path: str, array_path: str, targets_path: str) -> dict:
+    try:
+        doc = json.loads(open(plan_path, encoding="utf-8").read())
+    except FileNotFoundError:
+        raise InputError(Problem(plan_path, "", "file not found")) from None
+    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
+        raise InputError(Problem(plan_path, "", f"not valid JSON: {exc}")) from None
+    if not isinstance(doc, dict) or doc.get("schema") != SCHEMA:
+        got = doc.get("schema") if isinstance(doc, dict) else None
+        raise InputError(Problem(plan_path, "schema", f"expected {SCHEMA!r}, got {got!r}"))
+    array, targets = load_array(array_path), load_targets(targets_path)
+    try:
+        problems = verify_plan(doc, array, targets)
+    except (KeyError, TypeError, ValueError) as exc:
+        raise InputError(Problem(plan_path, "", f"malformed plan: {exc}")) from None
+    return {"plan": plan_path, "valid": not problems, "problems": problems}
