@@ -75,7 +75,7 @@ def optimize(ctx, cands: list[Candidate], suits, tr: GridTransitions, s: PlanSet
     total, carriage = transition_bounds(tr, used)
     total = np.where(total >= 0, total + tr.pad, total)
     acq = int(tr.over.acquisition_s)
-    first = int(np.ceil(acq))
+    first = acq
 
     m = cp_model.CpModel()
     n = len(cands)

@@ -18,6 +18,7 @@ from scheduler.plan_model import Candidate, PlanSettings, Visit
 from scheduler.transitions import transition
 
 TIME_PAD_S = 1.0  # seconds added to each exact transition, against rounding
+PROFILE_POINTS = 9  # samples of a visit for its altitude range and end geometry
 
 
 def _state(ctx: SkyContext, i: int, t: float):
@@ -108,24 +109,33 @@ def settle_sequence(ctx, seq, targets, suits, s: PlanSettings, compact: bool = T
 
 def to_visits(ctx: SkyContext, timed, br) -> list[Visit]:
     """Visits with carriage paths: K at each end of a transition from its minimax
-    shift, kept mid-way in the span that allows it."""
+    shift, kept mid-way in the span that allows it.  Each visit's geometry is evaluated
+    once, at nine instants from its start to its end."""
+    m = ctx.margins.delay_m
+    profiles = [
+        evaluate(ctx, np.full(PROFILE_POINTS, c.target), np.linspace(st, st + c.duration_s,
+                                                                     PROFILE_POINTS))
+        for c, st, _ in timed
+    ]  # fmt: skip
+
+    def span(ev, k):
+        return float(ev.span.low_m[k]) + m, float(ev.span.high_m[k]) - m
+
     n = len(timed)
     k_start = [0.0] * n
     k_end = [0.0] * n
-    for j, (cand, st, tr) in enumerate(timed):
+    for j, (_, _, tr) in enumerate(timed):
+        lb, hb = span(profiles[j], 0)
         if j == 0 or tr is None:
-            _, lo, hi = _state(ctx, cand.target, st)
-            k_start[j] = 0.5 * (lo + hi)
+            k_start[j] = 0.5 * (lb + hb)
             continue
-        pc, pst, _ = timed[j - 1]
-        _, (la, ha), (lb, hb) = _exact(ctx, pc.target, pst + pc.duration_s, cand.target, st)
+        la, ha = span(profiles[j - 1], -1)
         dk = float(tr.dk_m)
         lo, hi = max(la, lb - dk), min(ha, hb - dk)
         k_end[j - 1] = 0.5 * (lo + hi) if lo <= hi else 0.5 * (la + ha)
         k_start[j] = k_end[j - 1] + dk
     if n:
-        c, st, _ = timed[-1]
-        _, lo, hi = _state(ctx, c.target, st + c.duration_s)
+        lo, hi = span(profiles[-1], -1)
         k_end[-1] = float(np.clip(k_start[-1], lo, hi))
     served: dict[str, list[str]] = {}
     for sci, pair in br.items():
@@ -133,21 +143,18 @@ def to_visits(ctx: SkyContext, timed, br) -> list[Visit]:
             served.setdefault(cid, []).append(sci)
     visits = []
     for j, (cand, st, tr) in enumerate(timed):
-        end = st + cand.duration_s
-        ev0, _, _ = _state(ctx, cand.target, st)
-        ev1, _, _ = _state(ctx, cand.target, end)
-        mid = evaluate(ctx, np.full(9, cand.target), np.linspace(st, end, 9))
-        x0 = line_paths(ctx.beams, ev0.pds_m[:, 0], k_start[j])
-        x1 = line_paths(ctx.beams, ev1.pds_m[:, 0], k_end[j])
+        prof = profiles[j]
+        x0 = line_paths(ctx.beams, prof.pds_m[:, 0], k_start[j])
+        x1 = line_paths(ctx.beams, prof.pds_m[:, -1], k_end[j])
         slew = float(tr.slew_s) if tr is not None else 0.0
         carriage = float(tr.carriage_s) if tr is not None else 0.0
         acq = float(tr.acquisition_s) if tr is not None else ctx.array_overheads.acquisition_s
         gap = st - (timed[j - 1][1] + timed[j - 1][0].duration_s) if j else acq
         visits.append(Visit(
-            id=cand.id, target=cand.target, start_s=st, end_s=end, slew_s=slew,
-            carriage_s=carriage, acquisition_s=acq, transition_s=gap,
+            id=cand.id, target=cand.target, start_s=st, end_s=st + cand.duration_s,
+            slew_s=slew, carriage_s=carriage, acquisition_s=acq, transition_s=gap,
             opd_start_m=tuple(float(v) for v in x0), opd_end_m=tuple(float(v) for v in x1),
-            alt_range_rad=(float(mid.alt_rad.min()), float(mid.alt_rad.max())),
+            alt_range_rad=(float(prof.alt_rad.min()), float(prof.alt_rad.max())),
             calibrates=tuple(served.get(cand.id, ())),
         ))  # fmt: skip
     return visits
