@@ -15,8 +15,9 @@ class PlanSettings:
     """Rules of the queue (defaults documented in README.md).
 
     ``carriage_weight`` is the objective's price of one second of carriage
-    repositioning, in priority x seconds of science: 0.05 means a minute of carriage
-    travel weighs as much as three seconds of priority-1 science.
+    repositioning, in priority x seconds of science: 1.0 means a second of carriage
+    travel weighs as much as one second of priority-1 science (small: a night's moves
+    add up to minutes, its science to hours).
     """
 
     calibrator_gap_s: float = 3600.0
@@ -25,7 +26,7 @@ class PlanSettings:
     calibrator_min_visibility: float = 0.8
     wavelength_m: float = 1.65e-6
     calibrator_copies: int = 3
-    carriage_weight: float = 0.05
+    carriage_weight: float = 1.0
     time_limit_s: float = 20.0
     seed: int = 0
     deterministic: bool = False
