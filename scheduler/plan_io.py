@@ -81,11 +81,16 @@ def _paths(lines, values) -> dict[str, float]:
 def write_atomic(path: str | Path, text: str) -> None:
     """Write ``text`` to ``path`` through a temporary file in the same folder, then
     rename: readers see the old file or the new one, never half of one."""
+    write_atomic_bytes(path, text.encode("utf-8"))
+
+
+def write_atomic_bytes(path: str | Path, data: bytes) -> None:
+    """Bytes version of :func:`write_atomic`."""
     path = Path(path)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", dir=path.parent or ".")
     try:
-        with os.fdopen(fd, "w", encoding="utf-8") as f:
-            f.write(text)
+        with os.fdopen(fd, "wb") as f:
+            f.write(data)
             f.flush()
             os.fsync(f.fileno())
         os.replace(tmp, path)
