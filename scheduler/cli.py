@@ -9,11 +9,13 @@ from __future__ import annotations
 
 import argparse
 import sys
+import time
 
 from scheduler.errors import InputError, Problem
 
 DEMO_NIGHT = "2027-04-18"
-DEMO_CONFIG = "long"
+DEMO_CONFIG = "medium"
+DEMO_TIME_LIMIT_S = 15.0
 
 
 def _parser() -> argparse.ArgumentParser:
@@ -49,6 +51,9 @@ def _parser() -> argparse.ArgumentParser:
     pl.add_argument("--deterministic", action="store_true", help="same plan for the same seed")
     pl.add_argument("--solver", choices=("optimize", "greedy"), default="optimize")
     pl.add_argument("--out", help="write the plan (JSON, schema opdplan-plan/1) here")
+    pl.add_argument("--csv", help="write the visits as CSV here")
+    pl.add_argument("--votable", help="write the visits as an IVOA VOTable (ObsLocTAP names)")
+    pl.add_argument("--plot", help="write a PNG of altitudes and carriage paths (plots extra)")
 
     v = sub.add_parser("verify", help="check a plan file against the array and catalog")
     v.add_argument("plan")
@@ -91,18 +96,21 @@ def _delays(args, console):
 
 
 def _demo(args, console):
-    from scheduler.commands import windows_cmd
+    from scheduler.commands import plan_cmd
     from scheduler.commands.common import demo_file, load_inputs
+    from scheduler.plan_model import PlanSettings
 
     console.print(
         "[bold]opdplan demo[/bold]: a fictional site and array (catalogs/demo_array.toml) "
-        f"and catalog (catalogs/demo_targets.csv), night of {DEMO_NIGHT}, "
-        f"configuration {DEMO_CONFIG}."
+        f"and catalog (catalogs/demo_targets.csv); the queue for the night of {DEMO_NIGHT} "
+        f"in configuration {DEMO_CONFIG}, optimised for up to {DEMO_TIME_LIMIT_S:.0f} s and "
+        "checked by the independent verifier. See `opdplan windows` for every target's windows."
     )
     inputs = load_inputs(
         demo_file("demo_array.toml"), DEMO_CONFIG, demo_file("demo_targets.csv"), DEMO_NIGHT
     )
-    return windows_cmd.run(inputs, False)
+    settings = PlanSettings(time_limit_s=DEMO_TIME_LIMIT_S)
+    return plan_cmd.run(inputs, settings, "optimize", plan_cmd.Outputs(), False, args.started_s)
 
 
 def _plan(args, console):
@@ -115,7 +123,8 @@ def _plan(args, console):
     settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
                             deterministic=args.deterministic)  # fmt: skip
     inputs = load_inputs(args.array, args.config, args.targets, args.night)
-    return plan_cmd.run(inputs, settings, args.solver, args.out, args.json)
+    outputs = plan_cmd.Outputs(args.out, args.csv, args.votable, args.plot)
+    return plan_cmd.run(inputs, settings, args.solver, outputs, args.json, args.started_s)
 
 
 def _verify(args, console):
@@ -131,7 +140,9 @@ COMMANDS = {"windows": _windows, "delays": _delays, "plan": _plan, "verify": _ve
 
 
 def main(argv: list[str] | None = None) -> int:
+    started = time.perf_counter()
     args = _parser().parse_args(argv)
+    args.started_s = started
     from rich.console import Console
 
     from scheduler.commands.common import print_json

@@ -10,6 +10,7 @@ from __future__ import annotations
 import json
 import os
 import tempfile
+import time
 from pathlib import Path
 
 import numpy as np
@@ -34,6 +35,7 @@ def plan_dict(ctx: SkyContext, array, plan: Plan, settings: PlanSettings) -> dic
     night = ctx.night
     return {
         "schema": SCHEMA,
+        "created_utc": iso_utc(time.time()),
         "advisory": "Advisory only: every motion follows the site's interlocks and procedures.",
         "night": {"date": night.date.isoformat(), "start_utc": iso_utc(night.start_s),
                   "end_utc": iso_utc(night.end_s)},
@@ -93,6 +95,9 @@ def write_atomic_bytes(path: str | Path, data: bytes) -> None:
             f.write(data)
             f.flush()
             os.fsync(f.fileno())
+        mask = os.umask(0)
+        os.umask(mask)
+        os.chmod(tmp, 0o666 & ~mask)  # a new file's usual mode, not mkstemp's 0600
         os.replace(tmp, path)
     except BaseException:
         Path(tmp).unlink(missing_ok=True)

@@ -20,7 +20,7 @@ from scheduler.timing import settle_sequence, to_visits
 from scheduler.windows import observable_windows
 
 GRID_PAD_S = 20.0  # added to grid transitions, covering nearest-sample rounding
-RESERVE_S = 1.5  # of the time limit, kept for exact timing and verification
+RESERVE_S = 2.0  # of the time limit, kept for exact timing and verification
 
 
 def science_value(visits: list[Visit], ctx: SkyContext) -> float:
@@ -47,8 +47,17 @@ def objective(visits: list[Visit], ctx: SkyContext, settings: PlanSettings) -> f
     return science_value(visits, ctx) - settings.carriage_weight * idle_carriage_s(visits) / 3600.0
 
 
-def plan_night(ctx: SkyContext, settings: PlanSettings, solver: str = "optimize") -> Plan:
+def plan_night(
+    ctx: SkyContext,
+    settings: PlanSettings,
+    solver: str = "optimize",
+    started_s: float | None = None,
+) -> Plan:
+    """Plan the night.  ``settings.time_limit_s`` counts from ``started_s``
+    (``time.perf_counter()`` when the command began; now by default), and a reserve is
+    kept for exact timing and verification after the optimiser stops."""
     t0 = time.perf_counter()
+    started = t0 if started_s is None else started_s
     targets = ctx.targets
     windows = observable_windows(ctx)
     suits = suitable_calibrators(targets, ctx.beams.longest_baseline_m(), settings)
@@ -63,7 +72,7 @@ def plan_night(ctx: SkyContext, settings: PlanSettings, solver: str = "optimize"
     if solver == "optimize":
         from scheduler.optimizer import optimize
 
-        budget = settings.time_limit_s - (time.perf_counter() - t0) - RESERVE_S
+        budget = settings.time_limit_s - (time.perf_counter() - started) - RESERVE_S
         result = optimize(ctx, cands, suits, tr, settings, timed, budget)
         summary.update(result.report)
         if result.sequence is not None:

@@ -44,11 +44,19 @@ def load_inputs(array_path, config: str, targets: Targets | str | Path, night_te
 
 
 def demo_file(name: str) -> Path:
-    """A file of the demo scenario: ``catalogs/`` of a checkout, else the installed copy."""
-    local = Path.cwd() / "catalogs" / name
-    if local.exists():
-        return local
-    return Path(str(resources.files("scheduler.demo").joinpath(name)))
+    """A file of the demo scenario: ``catalogs/`` in the current folder, else the copy
+    installed with the package, else ``catalogs/`` beside the package's source tree (an
+    editable install)."""
+    places = [Path.cwd() / "catalogs" / name]
+    try:
+        places.append(Path(str(resources.files("scheduler.demo").joinpath(name))))
+    except ModuleNotFoundError:
+        pass
+    places.append(Path(__file__).resolve().parents[2] / "catalogs" / name)
+    for place in places:
+        if place.exists():
+            return place
+    raise InputError(Problem("demo", "", f"the demo file {name} is not installed"))
 
 
 def print_json(data) -> None:

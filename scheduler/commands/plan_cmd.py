@@ -3,11 +3,13 @@
 from __future__ import annotations
 
 import json
+from dataclasses import dataclass
 
 from scheduler.array_file import load_array
 from scheduler.catalog import load_targets
 from scheduler.commands.common import Inputs
 from scheduler.errors import InputError, Problem
+from scheduler.plan_export import write_csv, write_votable
 from scheduler.plan_io import SCHEMA, plan_dict, write_plan
 from scheduler.plan_model import PlanSettings
 from scheduler.planner import plan_night
@@ -20,19 +22,52 @@ class PlanRejected(RuntimeError):
     """The verifier found a broken rule in a plan opdplan made: a bug, never shown."""
 
 
-def run(inputs: Inputs, settings: PlanSettings, solver: str, out: str | None, as_json: bool):
+@dataclass(frozen=True)
+class Outputs:
+    """Where to write the plan (any may be None)."""
+
+    json: str | None = None
+    csv: str | None = None
+    votable: str | None = None
+    plot: str | None = None
+
+
+def run(inputs: Inputs, settings: PlanSettings, solver: str, outputs: Outputs, as_json: bool,
+        started_s: float | None = None):  # fmt: skip
+    """Plan, verify, write the requested files (only once everything is computed)."""
+    if outputs.plot:
+        try:
+            import matplotlib  # noqa: F401
+        except ImportError:
+            raise InputError(
+                Problem("--plot", "", "needs matplotlib: pip install '.[plots]'")
+            ) from None
     ctx = inputs.context()
-    plan = plan_night(ctx, settings, solver)
+    plan = plan_night(ctx, settings, solver, started_s)
     doc = plan_dict(ctx, inputs.array, plan, settings)
     problems = verify_plan(doc, inputs.array, inputs.targets)
     if problems:
         raise PlanRejected("the verifier rejected the plan: " + "; ".join(problems))
     doc["summary"]["verified"] = True
-    if out:
-        write_plan(out, doc)
+    write_outputs(ctx, plan, doc, outputs)
     if as_json:
         return doc
     return timeline(ctx, plan, doc)
+
+
+def write_outputs(ctx, plan, doc: dict, outputs: Outputs) -> None:
+    t = ctx.targets
+    critical = {t.names[i] for i in range(len(t)) if t.window_start_s[i] == t.window_start_s[i]}
+    if outputs.json:
+        write_plan(outputs.json, doc)
+    if outputs.csv:
+        write_csv(outputs.csv, doc)
+    if outputs.votable:
+        write_votable(outputs.votable, doc, critical)
+    if outputs.plot:
+        from scheduler.plot import plot_plan
+
+        plot_plan(ctx, plan, outputs.plot)
 
 
 def timeline(ctx, plan, doc) -> TimelineView:
