@@ -13,9 +13,8 @@ from scheduler.plan_export import write_csv, write_votable
 from scheduler.plan_io import SCHEMA, plan_dict, write_plan
 from scheduler.plan_model import PlanSettings
 from scheduler.planner import plan_night
-from scheduler.timefmt import hhmm, hours_label
+from scheduler.timeline_rows import timeline_view
 from scheduler.verifier import verify_plan
-from scheduler.views.timeline_view import TimelineRow, TimelineView
 
 
 class PlanRejected(RuntimeError):
@@ -52,7 +51,7 @@ def run(inputs: Inputs, settings: PlanSettings, solver: str, outputs: Outputs, a
     write_outputs(ctx, plan, doc, outputs)
     if as_json:
         return doc
-    return timeline(ctx, plan, doc)
+    return timeline_view(ctx, plan, doc)
 
 
 def write_outputs(ctx, plan, doc: dict, outputs: Outputs) -> None:
@@ -68,26 +67,6 @@ def write_outputs(ctx, plan, doc: dict, outputs: Outputs) -> None:
         from scheduler.plot import plot_plan
 
         plot_plan(ctx, plan, outputs.plot)
-
-
-def timeline(ctx, plan, doc) -> TimelineView:
-    t = ctx.targets
-    rows = []
-    for v, d in zip(plan.visits, doc["visits"], strict=True):
-        rows.append(TimelineRow(
-            hhmm(v.start_s), hhmm(v.end_s), hours_label(ctx.night.lst_rad(v.start_s)),
-            t.names[v.target], t.kind(v.target), t.program[v.target],
-            f"{d['altitude_deg'][0]:.0f}-{d['altitude_deg'][1]:.0f}", v.slew_s, v.carriage_s,
-            v.acquisition_s, ("calibrates " + ", ".join(v.calibrates)) if v.calibrates else "",
-        ))  # fmt: skip
-    s = doc["summary"]
-    summary = [f"science {s['science_hours']:.2f} h", f"value {s['weighted_value']:.2f}",
-               f"greedy {s['greedy_value']:.2f}", f"idle carriage {s['idle_carriage_s']:.0f} s",
-               f"solver {s['solver']}"]  # fmt: skip
-    if s.get("bound") is not None:
-        summary += [f"bound {s['bound']:.2f}", f"gap {s['gap']:.1%}"]
-    title = f"Queue for the night of {ctx.night.date} - configuration {ctx.beams.configuration}"
-    return TimelineView(title, rows, summary, list(plan.unscheduled))
 
 
 def verify_file(plan_path: str, array_path: str, targets_path: str) -> dict:
