@@ -16,7 +16,7 @@ from scheduler.model import Beams, Overheads
 from scheduler.plan_model import Candidate, PlanSettings
 from scheduler.transitions import transition
 
-MAX_WAIT_S = 1800.0  # a block must start its science within this of the cursor
+MAX_WAIT_S = 1800.0  # a block must begin (its first visit) within this of the cursor
 IDLE_STEP_S = 300.0
 
 
@@ -82,8 +82,7 @@ def greedy_sequence(
             block = _block(c, ready, prev, targets, suits, copies, cal_log, tr, s)
             if block is None or block[-1][1] > night_end_s:
                 continue
-            sci_start = next(st for cc, st, _ in block if cc is c)
-            if sci_start - cursor > MAX_WAIT_S:
+            if block[0][1] - cursor > MAX_WAIT_S:  # the block must begin soon
                 continue
             best = block
             break  # science is sorted by priority: the first feasible block wins

@@ -29,13 +29,14 @@ import numpy as np
 from ortools.sat.python import cp_model
 
 from scheduler.greedy import GridTransitions
+from scheduler.optimizer_bounds import abutting_pairs, reserves, slot_bounds, transition_bounds
 from scheduler.plan_model import Candidate, PlanSettings
-from scheduler.transitions import transition
 
-BOUND_STEP_S = 600.0  # sampling of the night for transition upper bounds
-BOUND_LAG_S = 600.0  # typical length of a transition, between end of u and start of v
-DETERMINISTIC_S_PER_UNIT = 1.0  # wall seconds per deterministic-time unit, roughly
+#: wall seconds per CP-SAT deterministic-time unit with one worker, measured on the demo
+#: night on this project's 2-core machines: planning model about 6, bounding model about 4
+PLAN_S_PER_UNIT, BOUND_S_PER_UNIT = 6.0, 4.0
 PLAN_SHARE = 0.6  # of the time budget, for the planning model; the rest bounds
+NEAREST = 2  # per visit, the predecessors with the shortest transitions that may abut it
 
 
 @dataclass
@@ -54,54 +55,26 @@ class Handles:
     before: dict
     after: dict
     size: list  # reserve before each visit (int or variable)
-    tight: dict  # (u, v) -> literal "u immediately precedes v, closely"
+    begin: list  # start of each visit's reserved time (variable or expression)
+    reserve: list  # the most each visit reserves, s
+    earliest: list  # the first allowed start of each visit, s from night start
+    tight: dict  # (u, v, slot) -> (literal "u ends in slot, v follows closely", bound, lo, hi)
 
 
-def transition_bounds(tr: GridTransitions, targets_used: np.ndarray):
-    """Upper bounds (s) of the transition, and of its carriage move, between every pair
-    of the targets used, over the night (sampled every ``BOUND_STEP_S``); the transition
-    bound is -1 where the pair is never both observable."""
-    g = tr.g
-    idx = np.asarray(targets_used)
-    n = len(idx)
-    total = np.full((n, n), -1.0)
-    carriage = np.zeros((n, n))
-    for ta in np.arange(g.t_s[0], g.t_s[-1] - BOUND_LAG_S, BOUND_STEP_S):
-        ca, cb = g.column(ta), g.column(ta + BOUND_LAG_S)
-        ok = g.ok[idx, ca][:, None] & g.ok[idx, cb][None, :]
-        if not ok.any():
-            continue
-        a = (slice(None), idx, ca)
-        b = (slice(None), idx, cb)
-        t = transition(
-            tr.beams, tr.over,
-            g.alt_rad[idx, ca][:, None], g.az_rad[idx, ca][:, None], g.pds_m[a][:, :, None],
-            g.k_low_m[idx, ca][:, None], g.k_high_m[idx, ca][:, None],
-            g.alt_rad[idx, cb][None, :], g.az_rad[idx, cb][None, :], g.pds_m[b][:, None, :],
-            g.k_low_m[idx, cb][None, :], g.k_high_m[idx, cb][None, :],
-        )  # fmt: skip
-        total = np.where(ok, np.maximum(total, t.total_s), total)
-        carriage = np.where(ok, np.maximum(carriage, t.carriage_s), carriage)
-    return total, carriage
-
-
-def reserves(cands: list[Candidate], total: np.ndarray, pos: dict, shortest_s: int):
-    """Seconds reserved before each candidate: the longest transition into its target
-    (planning), or the shortest possible transition (bounding)."""
-    longest = np.ceil(np.max(total, axis=0)).astype(int)
-    plan = [max(int(longest[pos[c.target]]), shortest_s) for c in cands]
-    return plan, [shortest_s] * len(cands)
+def room_s(cands: list[Candidate], shortest: int) -> int:
+    """Seconds between two visits too few for any other visit to fit between them."""
+    return min(int(np.ceil(c.duration_s)) for c in cands) + shortest - 1 if cands else 0
 
 
 def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanSettings,
-                acq: int, pair_s=None, move_cost=None):  # fmt: skip
+                acq: int, shortest: int, slots=None, move_cost=None):  # fmt: skip
     """The CP-SAT model (see the module docstring) with ``reserve[k]`` seconds kept free
     before candidate k; returns the model and its handles.
 
-    With ``pair_s(u, v)`` (the transition bound between two candidates' targets), a
-    science visit that follows one of its calibrators closely, or a calibrator that
-    follows its science visit closely, reserves only that pair's transition: "closely"
-    means too close for any other visit to fit between, so the pair is consecutive.
+    With ``slots`` (per candidate pair, the transition bound by slot of the night, see
+    :func:`scheduler.optimizer_bounds.slot_bounds`), a visit that closely follows one of
+    those partners reserves only that pair's bound in the slot: "closely" means too close
+    for any other visit to fit between, so the pair is consecutive.
     With ``move_cost = (weight, longest_move_s per candidate, move_s(u, v))`` the objective
     also pays ``weight`` per second of carriage move into each visit: the pair's bound
     for a close pair, the longest into it otherwise.
@@ -109,8 +82,7 @@ def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanS
     targets = ctx.targets
     t0 = ctx.night.start_s
     m = cp_model.CpModel()
-    shortest = min(reserve, default=acq)
-    pres, start, end, busy, size = [], [], [], [], []
+    pres, start, end, busy, size, begins, earliest = [], [], [], [], [], [], []
     for c, r in zip(cands, reserve, strict=True):
         d = int(np.ceil(c.duration_s))
         spans = [(max(acq, int(np.ceil(a - t0))), int(np.floor(b - t0))) for a, b in c.starts]
@@ -120,7 +92,7 @@ def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanS
             m.add(p == 0)
             spans = [(acq, acq)]
         st = m.new_int_var_from_domain(cp_model.Domain.from_intervals(spans), f"start_{c.id}")
-        if pair_s:
+        if slots:
             rv = m.new_int_var(shortest, r, f"reserve_{c.id}")
             lo, hi = spans[0][0] - r, spans[-1][1] - shortest
             begin = m.new_int_var(lo, hi, f"free_from_{c.id}")
@@ -131,6 +103,8 @@ def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanS
         start.append(st)
         end.append(st + d)
         size.append(rv)
+        begins.append(begin)
+        earliest.append(spans[0][0])
         busy.append(m.new_optional_interval_var(begin, d + rv, st + d, p, f"busy_{c.id}"))
     m.add_no_overlap(busy)
     night = int(np.ceil(ctx.night.end_s - t0)) + max(reserve, default=0)
@@ -149,38 +123,40 @@ def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanS
 
     before, after = _brackets(m, ctx, cands, suits, s, pres, start, end, acq)
     tight = {}
-    if pair_s:
-        tight = _tight_pairs(m, cands, reserve, shortest, before, after, start, end, size,
-                             pair_s)  # fmt: skip
+    if slots:
+        tight = _tight_pairs(m, cands, reserve, room_s(cands, shortest), start, end, size, pres,
+                             slots, t0)  # fmt: skip
     value = [int(round(c.value * 3600.0)) for c in cands]
     gain = sum(v * p for v, p in zip(value, pres, strict=True))
     if move_cost:
         w, longest, move_s = move_cost
         gain -= sum(int(round(w * longest[k])) * pres[k] for k in range(len(cands)))
         gain += sum(int(round(w * max(0.0, longest[v] - move_s(u, v)))) * q
-                    for (u, v), q in tight.items())  # fmt: skip
+                    for (u, v, _), (q, _, _, _) in tight.items())  # fmt: skip
     m.maximize(gain)
-    return m, Handles(pres, start, before, after, size, tight)
+    return m, Handles(pres, start, before, after, size, begins, list(reserve), earliest, tight)
 
 
-def _tight_pairs(m, cands, reserve, shortest, before, after, start, end, size, pair_s):
-    """Literals for "u immediately precedes v" on science-calibrator pairs, each
-    shrinking v's reserve to the pair's transition bound."""
-    room = min(int(np.ceil(c.duration_s)) for c in cands) + shortest - 1
+def _tight_pairs(m, cands, reserve, room, start, end, size, pres, slots, t0):
+    """Literals "u ends in slot j and v follows it closely", each shrinking v's reserve
+    to the pair's bound in that slot; ``slots[(u, v)]`` lists (lo, hi, bound) with POSIX
+    times bounding the end of u."""
     into: dict[int, list[tuple]] = {}
     tight = {}
-    pairs = [(c, v) for (v, c) in before] + [(v, c) for (v, c) in after]
-    for u, v in pairs:  # u right before v
-        t_uv = int(np.ceil(pair_s(u, v)))
-        if t_uv < 0 or t_uv >= reserve[v]:
-            continue
-        q = m.new_bool_var(f"next_{cands[u].id}_{cands[v].id}")
-        link = before.get((v, u)) if (v, u) in before else after[(u, v)]
-        m.add_implication(q, link)
-        m.add(start[v] - end[u] >= t_uv).only_enforce_if(q)
-        m.add(start[v] - end[u] <= t_uv + room).only_enforce_if(q)
-        into.setdefault(v, []).append((q, t_uv))
-        tight[(u, v)] = q
+    for (u, v), options in sorted(slots.items()):
+        for j, (lo, hi, bound) in enumerate(options):
+            t_uv = int(np.ceil(bound))
+            if t_uv >= reserve[v]:
+                continue
+            q = m.new_bool_var(f"next_{cands[u].id}_{cands[v].id}_{j}")
+            m.add_implication(q, pres[u])
+            m.add_implication(q, pres[v])
+            m.add(end[u] >= int(np.ceil(lo - t0))).only_enforce_if(q)
+            m.add(end[u] <= int(np.floor(hi - t0))).only_enforce_if(q)
+            m.add(start[v] - end[u] >= t_uv).only_enforce_if(q)
+            m.add(start[v] - end[u] <= t_uv + room).only_enforce_if(q)
+            into.setdefault(v, []).append((q, t_uv))
+            tight[(u, v, j)] = (q, t_uv, lo, hi)
     for v, options in into.items():
         m.add(sum(q for q, _ in options) <= 1)
         m.add(size[v] >= reserve[v] - sum((reserve[v] - t) * q for q, t in options))
@@ -231,32 +207,32 @@ def _brackets(m, ctx, cands, suits, s, pres, start, end, acq):
     return before, after
 
 
-def model_hint(ctx, cands, suits, h: Handles, reserve: list[int], pair_s, s: PlanSettings,
-               timed, acq: int):  # fmt: skip
+def model_hint(ctx, cands, suits, h: Handles, s: PlanSettings, timed, acq: int, shortest: int):
     """A complete solution the model accepts, from an exactly timed night: re-time it
-    with the model's reserves (a pair's own bound where the model allows it), drop what
+    with the model's reserves (a pair's slot bound where the model allows it), drop what
     no longer fits, repair brackets until stable.  Returns the starts by candidate index
-    (offsets, s), the reserves used, the tight pairs and the brackets by visit id."""
+    (offsets, s), the reserves used, the tight keys and the brackets by visit id."""
     from scheduler.timing import brackets
 
     k_of = {c.id: k for k, c in enumerate(cands)}
     seq = [k_of[c.id] for c, _, _ in timed if c.id in k_of]
     t0 = ctx.night.start_s
-    shortest = min(reserve, default=acq)
-    room = min(int(np.ceil(c.duration_s)) for c in cands) + shortest - 1 if cands else 0
+    room = room_s(cands, shortest)
+    by_pair: dict[tuple[int, int], list] = {}
+    for (u, v, j), (_, bound, lo, hi) in h.tight.items():
+        by_pair.setdefault((u, v), []).append((j, bound, lo - t0, hi - t0))
     for _ in range(len(seq) + 1):
         out, used_r, tight = [], {}, set()
         free, last, prev = float(acq), {}, None
         for k in seq:
             c = cands[k]
             ready = last.get(c.target, -np.inf) + ctx.targets.min_separation_s[c.target]
-            need = reserve[k]
-            pair = prev is not None and (prev, k) in h.tight
-            if pair:
-                need = int(np.ceil(pair_s(prev, k)))
+            slot = next(((j, b) for j, b, lo, hi in by_pair.get((prev, k), ())
+                         if lo <= free <= hi), None) if out else None  # fmt: skip
+            need = slot[1] if slot else h.reserve[k]
             begin = c.earliest_start(t0 + float(np.ceil(max(ready, free + need if out else free))))
-            if begin is not None and pair and begin - t0 - free > need + room:
-                pair, need = False, reserve[k]
+            if begin is not None and slot and begin - t0 - free > need + room:
+                slot, need = None, h.reserve[k]
                 begin = c.earliest_start(t0 + float(np.ceil(max(ready, free + need))))
             if begin is None:
                 continue
@@ -264,9 +240,9 @@ def model_hint(ctx, cands, suits, h: Handles, reserve: list[int], pair_s, s: Pla
             if not any(a - t0 <= offset <= b - t0 for a, b in c.starts):
                 continue
             out.append((k, offset))
-            used_r[k] = need if out[:-1] else reserve[k]
-            if pair:
-                tight.add((prev, k))
+            used_r[k] = need if len(out) > 1 else h.reserve[k]
+            if slot:
+                tight.add((prev, k, slot[0]))
             free = offset + np.ceil(c.duration_s)
             last[c.target] = free
             prev = k
@@ -288,32 +264,41 @@ def _apply_hint(m, h: Handles, cands, hint, br, sizes=None, tight=frozenset()) -
     starts = dict(hint)
     for k, p in enumerate(h.pres):
         m.add_hint(p, k in starts)
-        if k in starts:
-            m.add_hint(h.start[k], int(starts[k]))
+        st = int(starts[k]) if k in starts else h.earliest[k]
+        m.add_hint(h.start[k], st)
         if not isinstance(h.size[k], int):
-            m.add_hint(h.size[k], int((sizes or {}).get(k, h.size[k].proto.domain[-1])))
+            reserve = int((sizes or {}).get(k, h.reserve[k]))
+            m.add_hint(h.size[k], reserve)
+            m.add_hint(h.begin[k], st - reserve)
     chosen_before = {(k_of[sci], k_of[pair[0]]) for sci, pair in br.items() if pair}
     chosen_after = {(k_of[sci], k_of[pair[1]]) for sci, pair in br.items() if pair}
     for key, lit in h.before.items():
         m.add_hint(lit, key in chosen_before)
     for key, lit in h.after.items():
         m.add_hint(lit, key in chosen_after)
-    for key, lit in h.tight.items():
+    for key, (lit, _, _, _) in h.tight.items():
         m.add_hint(lit, key in tight)
 
 
-def solve(m, h: Handles, cands, s: PlanSettings, budget_s: float, t0: float):
-    """Solve with explicit parameters; (status name, objective, bound, wall, sequence)."""
+def solve(m, h: Handles, cands, s: PlanSettings, budget_s: float, t0: float,
+          s_per_unit: float = PLAN_S_PER_UNIT):  # fmt: skip
+    """Solve with explicit parameters; (status name, objective, bound, wall, sequence).
+
+    By default two workers race under a wall-clock limit.  With ``s.deterministic`` one
+    worker searches under a deterministic-time limit (``budget_s / s_per_unit`` units),
+    which gives the same answer for the same model and seed; the wall-clock limit is
+    then only a generous backstop."""
     solver = cp_model.CpSolver()
     prm = solver.parameters
     prm.random_seed = s.seed
     prm.cp_model_probing_level = 0
-    prm.num_workers = 2
-    prm.max_time_in_seconds = max(0.2, budget_s)
     if s.deterministic:
-        prm.interleave_search = True
-        prm.max_deterministic_time = max(0.1, budget_s / DETERMINISTIC_S_PER_UNIT)
-        prm.max_time_in_seconds = max(0.2, budget_s) * 4.0  # the deterministic limit rules
+        prm.num_workers = 1
+        prm.max_deterministic_time = max(0.05, budget_s / s_per_unit)
+        prm.max_time_in_seconds = 10.0 * max(1.0, budget_s)
+    else:
+        prm.num_workers = 2
+        prm.max_time_in_seconds = max(0.2, budget_s)
     status = solver.solve(m)
     name = solver.status_name(status)
     if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
@@ -346,17 +331,22 @@ def optimize(ctx, cands: list[Candidate], suits, tr: GridTransitions, s: PlanSet
     def carriage_s(u, v):
         return carriage[pos[cands[u].target], pos[cands[v].target]]
 
+    pairs = abutting_pairs(cands, suits, pair_s, room_s(cands, shortest), NEAREST)
+    by_target = slot_bounds(tr, {(cands[u].target, cands[v].target) for u, v in pairs}, tr.pad)
+    slots = {(u, v): by_target[(cands[u].target, cands[v].target)] for u, v in pairs}
     longest_move = np.max(carriage, axis=0)
     move_cost = (s.carriage_weight, [float(longest_move[pos[c.target]]) for c in cands],
                  carriage_s)  # fmt: skip
-    m, h = build_model(ctx, cands, suits, plan_reserve, s, acq, pair_s, move_cost)
-    hint, sizes, tight, br = model_hint(ctx, cands, suits, h, plan_reserve, pair_s, s, timed, acq)
+    m, h = build_model(ctx, cands, suits, plan_reserve, s, acq, shortest, slots, move_cost)
+    hint, sizes, tight, br = model_hint(ctx, cands, suits, h, s, timed, acq, shortest)
     _apply_hint(m, h, cands, hint, br, sizes, tight)
     status, obj, _, wall, seq = solve(m, h, cands, s, PLAN_SHARE * budget_s, t0)
+    # in deterministic mode the split must not depend on how long the first solve took
+    left = (1 - PLAN_SHARE) * budget_s if s.deterministic else max(0.5, budget_s - wall)
     report = {"status": status, "solve_s": round(wall, 3), "bound": None,
               "model_objective": None if obj is None else round(obj / 3600.0, 4)}  # fmt: skip
 
-    mb, hb = build_model(ctx, cands, suits, bound_reserve, s, acq)
+    mb, hb = build_model(ctx, cands, suits, bound_reserve, s, acq, shortest)
     if seq:  # the planning solution is feasible in the looser bounding model
         starts = [(k, st) for k, st in ((cands.index(c), start - t0) for c, start in seq)]
         from scheduler.timing import brackets
@@ -364,8 +354,7 @@ def optimize(ctx, cands: list[Candidate], suits, tr: GridTransitions, s: PlanSet
         _apply_hint(mb, hb, cands, starts,
                     brackets([(c, st, None) for c, st in seq], ctx.targets, suits,
                              s.calibrator_gap_s))  # fmt: skip
-    left = max(0.5, budget_s - wall)
-    b_status, _, bound, b_wall, _ = solve(mb, hb, cands, s, left, t0)
+    b_status, _, bound, b_wall, _ = solve(mb, hb, cands, s, left, t0, BOUND_S_PER_UNIT)
     report["bound_status"] = b_status
     report["bound_s"] = round(b_wall, 3)
     if bound is not None:

@@ -21,6 +21,7 @@ from scheduler.windows import observable_windows
 
 GRID_PAD_S = 20.0  # added to grid transitions, covering nearest-sample rounding
 RESERVE_S = 2.0  # of the time limit, kept for exact timing and verification
+PREPARE_S = 1.0  # of the time limit, assumed spent before the optimiser in deterministic mode
 
 
 def science_value(visits: list[Visit], ctx: SkyContext) -> float:
@@ -72,7 +73,10 @@ def plan_night(
     if solver == "optimize":
         from scheduler.optimizer import optimize
 
-        budget = settings.time_limit_s - (time.perf_counter() - started) - RESERVE_S
+        if settings.deterministic:  # a fixed share, so that machine speed changes nothing
+            budget = settings.time_limit_s - RESERVE_S - PREPARE_S
+        else:
+            budget = settings.time_limit_s - (time.perf_counter() - started) - RESERVE_S
         result = optimize(ctx, cands, suits, tr, settings, timed, budget)
         summary.update(result.report)
         if result.sequence is not None:

@@ -93,7 +93,24 @@ def brackets(timed, targets, suits: np.ndarray, gap_s: float) -> dict[str, tuple
 
 
 def settle_sequence(ctx, seq, targets, suits, s: PlanSettings, compact: bool = True):
-    """Time exactly, then drop broken brackets and idle calibrators until stable."""
+    """Time exactly, then drop broken brackets and idle calibrators until stable.
+
+    Compaction can pull a calibrator so early that it no longer brackets its science
+    visit; the sequence is therefore also timed without compaction (each visit no
+    earlier than its hint) and the better of the two kept."""
+    best = _settle(ctx, seq, targets, suits, s, compact)
+    if compact:
+        plain = _settle(ctx, seq, targets, suits, s, False)
+        if _value(plain[0], targets) > _value(best[0], targets):
+            best = plain
+    return best
+
+
+def _value(timed, targets) -> float:
+    return float(sum(c.value for c, _, _ in timed))
+
+
+def _settle(ctx, seq, targets, suits, s: PlanSettings, compact: bool):
     seq = list(seq)
     for _ in range(len(seq) + 1):
         timed = time_sequence(ctx, seq, compact)
@@ -132,8 +149,10 @@ def to_visits(ctx: SkyContext, timed, br) -> list[Visit]:
         la, ha = span(profiles[j - 1], -1)
         dk = float(tr.dk_m)
         lo, hi = max(la, lb - dk), min(ha, hb - dk)
-        k_end[j - 1] = 0.5 * (lo + hi) if lo <= hi else 0.5 * (la + ha)
-        k_start[j] = k_end[j - 1] + dk
+        # mid-way where the shift allows; clipped, so rounding at an end of the span can
+        # never put a carriage outside its range
+        k_end[j - 1] = float(np.clip(0.5 * (lo + hi), la, ha))
+        k_start[j] = float(np.clip(k_end[j - 1] + dk, lb, hb))
     if n:
         lo, hi = span(profiles[-1], -1)
         k_end[-1] = float(np.clip(k_start[-1], lo, hi))

@@ -2,7 +2,8 @@
 
 The night is sampled on a grid (60 s by default); every change of verdict between two
 samples is then located by bisection on the exact constraints, so window edges are good
-to about half a second.  Each excluded stretch carries the first constraint that fails
+to about half a second, and always on the observable side: a window's first and last
+instants are themselves observable.  Each excluded stretch carries the first constraint that fails
 in it (see :mod:`scheduler.constraints`).
 """
 
@@ -55,13 +56,17 @@ def observable_windows(ctx: SkyContext, step_s: float = GRID_STEP_S) -> list[Tar
     # every change of verdict between neighbouring samples, located by bisection
     tgt, col = np.nonzero(code[:, 1:] != code[:, :-1])
     left, right = t[col].copy(), t[col + 1].copy()
-    code_left = code[tgt, col]
+    code_left, code_right = code[tgt, col], code[tgt, col + 1]
+    leaving, entering = code_left == OK, code_right == OK
     for _ in range(BISECTIONS):
         mid = 0.5 * (left + right)
-        same = evaluate(ctx, tgt, mid).code == code_left
-        left = np.where(same, mid, left)
-        right = np.where(same, right, mid)
-    edge = 0.5 * (left + right)
+        c = evaluate(ctx, tgt, mid).code
+        # keep `left` where a window ends and `right` where one begins on the observable
+        # side, so that every window edge is itself an observable instant
+        stay = np.where(leaving, c == OK, np.where(entering, c != OK, c == code_left))
+        left = np.where(stay, mid, left)
+        right = np.where(stay, right, mid)
+    edge = np.where(leaving, left, np.where(entering, right, 0.5 * (left + right)))
     out = []
     for i in range(count):
         sel = tgt == i
