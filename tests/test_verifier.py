@@ -78,3 +78,32 @@ def test_visit_moved_out_of_its_window_is_caught(planned):
     last["end_s"] -= shift
     found = verify_plan(bad, inputs.array, inputs.targets)
     assert any(p.startswith(last["id"]) for p in found), found
+
+
+def test_visit_shifted_into_its_delay_infeasible_stretch_is_caught():
+    """Move a visit into a stretch where the windows say the delay lines cannot reach:
+    the verifier, with astropy's geometry and its own delay arithmetic, must say so."""
+    from scheduler.constraints import DELAY_BASE
+    from scheduler.windows import observable_windows
+
+    inputs = load_inputs(ROOT / "catalogs" / "demo_array.toml", "long",
+                         ROOT / "catalogs" / "demo_targets.csv", "2027-04-18")  # fmt: skip
+    ctx = inputs.context()
+    settings = PlanSettings()
+    plan = plan_night(ctx, settings, "greedy")
+    doc = plan_dict(ctx, inputs.array, plan, settings)
+    windows = {w.name: w for w in observable_windows(ctx)}
+    for v in doc["visits"]:
+        length = v["end_s"] - v["start_s"]
+        stretch = [(a, b) for a, b, code in windows[v["target"]].excluded
+                   if code >= DELAY_BASE and b - a > length + 120.0]  # fmt: skip
+        if stretch:
+            break
+    else:
+        pytest.fail("the long configuration should delay-limit some scheduled target")
+    bad = copy.deepcopy(doc)
+    moved = next(x for x in bad["visits"] if x["id"] == v["id"])
+    a, _ = stretch[0]
+    moved["start_s"], moved["end_s"] = a + 60.0, a + 60.0 + length
+    found = verify_plan(bad, inputs.array, inputs.targets)
+    assert any(p.startswith(v["id"]) and "delay-feasible" in p for p in found), found

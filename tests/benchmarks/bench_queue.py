@@ -67,7 +67,9 @@ def invented_catalog(n_science: int, seed: int) -> pd.DataFrame:
                          "dec": np.clip(dec + off * np.sin(angle), -89, 89),
                          "kind": "calibrator", "duration_min": 12,
                          "mag": rows[-1]["mag"] + rng.uniform(-0.5, 0.5)})  # fmt: skip
-    return pd.DataFrame(rows).astype(str)
+    frame = pd.DataFrame(rows)
+    frame["ra"] = frame["ra"] % 360.0
+    return frame.astype(object).where(frame.notna(), "").astype(str)
 
 
 def demo(limit: float) -> None:
