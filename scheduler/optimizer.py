@@ -302,7 +302,9 @@ def solve(m, h: Handles, cands, s: PlanSettings, budget_s: float, t0: float,
     status = solver.solve(m)
     name = solver.status_name(status)
     if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
-        return name, None, None, solver.wall_time, None
+        # the proven bound stands even when no solution was found in time
+        bound = solver.best_objective_bound if status == cp_model.UNKNOWN else None
+        return name, None, bound, solver.wall_time, None
     seq = sorted(
         ((cands[k], t0 + solver.value(h.start[k])) for k in range(len(cands))
          if solver.value(h.pres[k])),
