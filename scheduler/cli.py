@@ -60,6 +60,43 @@ def _parser() -> argparse.ArgumentParser:
     v.add_argument("--array", required=True)
     v.add_argument("--targets", required=True)
 
+    rp = sub.add_parser("replan", help="the rest of the night from the current state")
+    rp.add_argument("--plan", required=True, help="the plan made earlier (JSON)")
+    rp.add_argument("--log", required=True, help="the night log (JSON Lines)")
+    rp.add_argument("--now", required=True, help="the time to replan from, ISO 8601 UTC")
+    rp.add_argument("--out", help="write the new plan here (never over --plan without --overwrite)")
+    rp.add_argument("--overwrite", action="store_true", help="allow --out to replace --plan")
+    rp.add_argument("--array", help="array file, if not the one the plan was made from")
+    rp.add_argument("--targets", help="catalog, if not the one the plan was made from")
+    rp.add_argument("--time-limit", type=float, default=3.0, help="seconds for the optimiser")
+    rp.add_argument("--seed", type=int, default=0)
+    rp.add_argument("--deterministic", action="store_true")
+    rp.add_argument("--solver", choices=("optimize", "greedy"), default="optimize")
+    rp.add_argument("--json", action="store_true", help="print JSON instead of the view")
+
+    lg = sub.add_parser("log", help="append what happened to the night log")
+    events = lg.add_subparsers(dest="event", required=True, metavar="EVENT")
+    for name, text in (("done", "a visit was completed"), ("aborted", "a visit was aborted")):
+        e = events.add_parser(name, help=text)
+        e.add_argument("--log", required=True)
+        e.add_argument("--visit", required=True, help="visit id from the plan")
+        e.add_argument("--at", help="when (ISO 8601 UTC; default now)")
+    e = events.add_parser("closed", help="domes closed from one time to another")
+    e.add_argument("--log", required=True)
+    e.add_argument("--from", dest="from_", required=True)
+    e.add_argument("--to", required=True)
+    for name, text in (("out", "a station or delay line is out"), ("back", "it is back")):
+        e = events.add_parser(name, help=text)
+        e.add_argument("--log", required=True)
+        which = e.add_mutually_exclusive_group(required=True)
+        which.add_argument("--station")
+        which.add_argument("--delay-line")
+        e.add_argument("--at")
+    e = events.add_parser("carriages", help="where the carriages are")
+    e.add_argument("--log", required=True)
+    e.add_argument("--at", required=True)
+    e.add_argument("--opd", nargs="+", required=True, metavar="LINE=METRES")
+
     sub.add_parser("demo", help="run the fictional demo scenario end to end")
     return p
 
@@ -135,8 +172,27 @@ def _verify(args, console):
     return result
 
 
-COMMANDS = {"windows": _windows, "delays": _delays, "plan": _plan, "verify": _verify,
-            "demo": _demo}  # fmt: skip
+def _replan(args, console):
+    from scheduler.commands import replan_cmd
+    from scheduler.plan_model import PlanSettings
+
+    if not 1.0 <= args.time_limit <= 3600.0:
+        raise InputError(Problem("--time-limit", "", f"{args.time_limit} is not in [1, 3600] s"))
+    settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
+                            deterministic=args.deterministic)  # fmt: skip
+    return replan_cmd.run(args, settings, args.started_s)
+
+
+def _log(args, console):
+    from scheduler.commands import replan_cmd
+
+    return {"logged": replan_cmd.log(args), "log": args.log}
+
+
+COMMANDS = {
+    "windows": _windows, "delays": _delays, "plan": _plan, "verify": _verify,
+    "replan": _replan, "log": _log, "demo": _demo,
+}  # fmt: skip
 
 
 def main(argv: list[str] | None = None) -> int:
@@ -164,7 +220,8 @@ def main(argv: list[str] | None = None) -> int:
     if isinstance(result, dict):
         print_json(result)
     else:
-        console.print(result)
+        for part in result if isinstance(result, list) else [result]:
+            console.print(part)
         console.print(Caution())
     return getattr(args, "exit_code", 0)
 

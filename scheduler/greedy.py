@@ -13,7 +13,7 @@ import numpy as np
 
 from scheduler.geometry_grid import GeometryGrid
 from scheduler.model import Beams, Overheads
-from scheduler.plan_model import Candidate, PlanSettings
+from scheduler.plan_model import Candidate, PlanSettings, Start
 from scheduler.transitions import transition
 
 MAX_WAIT_S = 1800.0  # a block must begin (its first visit) within this of the cursor
@@ -59,26 +59,36 @@ def start_after(tr: GridTransitions, prev, cand: Candidate, ready_s: float):
 
 def greedy_sequence(
     cands: list[Candidate], targets, suits: np.ndarray, tr: GridTransitions,
-    s: PlanSettings, night_start_s: float, night_end_s: float,
+    s: PlanSettings, night_start_s: float, night_end_s: float, origin: Start | None = None,
 ) -> list[tuple[Candidate, float]]:  # fmt: skip
-    """A sequence of (candidate, start) chosen greedily by priority."""
+    """A sequence of (candidate, start) chosen greedily by priority; with ``origin`` it
+    starts from that state (a replan) instead of the start of the night."""
     science = sorted((c for c in cands if c.value > 0),
                      key=lambda c: (-targets.priority[c.target], c.number))  # fmt: skip
     copies: dict[int, list[Candidate]] = {}
     for c in cands:
         if c.value == 0:
             copies.setdefault(c.target, []).append(c)
-    done: dict[int, tuple[int, float]] = {}  # target -> (visits done, last end)
+    # per target: the next visit number still to schedule, and the end of the last one
+    nxt = {}
+    for c in science:
+        nxt[c.target] = min(nxt.get(c.target, c.number), c.number)
+    last: dict[int, float] = dict(origin.last_end) if origin else {}
     seq: list[tuple[Candidate, float]] = []
-    cal_log: list[tuple[int, float]] = []  # (calibrator target, end)
+    cal_log = [(c.target, st + c.duration_s) for c, st in origin.fixed] if origin else []
     cursor, prev = night_start_s, None
+    if origin is not None:
+        cursor = origin.t_s
+        if origin.target is not None:
+            prev = (origin.target, origin.t_s)
+        else:  # pointing unknown: allow half a turn of slew before the first acquisition
+            cursor += np.pi / tr.over.slew_rate_rad_s + tr.over.settle_s
     while cursor < night_end_s:
         best = None
         for c in science:
-            n_done, last_end = done.get(c.target, (0, -np.inf))
-            if c.number != n_done + 1:
+            if c.number != nxt.get(c.target):
                 continue
-            ready = max(cursor, last_end + targets.min_separation_s[c.target])
+            ready = max(cursor, last.get(c.target, -np.inf) + targets.min_separation_s[c.target])
             block = _block(c, ready, prev, targets, suits, copies, cal_log, tr, s)
             if block is None or block[-1][1] > night_end_s:
                 continue
@@ -95,8 +105,8 @@ def greedy_sequence(
                 copies[cand.target].remove(cand)
                 cal_log.append((cand.target, end))
             else:
-                n_done, _ = done.get(cand.target, (0, -np.inf))
-                done[cand.target] = (n_done + 1, end)
+                nxt[cand.target] = cand.number + 1
+                last[cand.target] = end
             prev = (cand.target, end)
         cursor = best[-1][2]
     return seq

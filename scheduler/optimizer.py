@@ -23,14 +23,14 @@ models solve to optimality in seconds on the demo night.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from ortools.sat.python import cp_model
 
 from scheduler.greedy import GridTransitions
 from scheduler.optimizer_bounds import abutting_pairs, reserves, slot_bounds, transition_bounds
-from scheduler.plan_model import Candidate, PlanSettings
+from scheduler.plan_model import Candidate, PlanSettings, Start
 
 #: wall seconds per CP-SAT deterministic-time unit with one worker, measured on the demo
 #: night on this project's 2-core machines: planning model about 6, bounding model about 4
@@ -58,7 +58,10 @@ class Handles:
     begin: list  # start of each visit's reserved time (variable or expression)
     reserve: list  # the most each visit reserves, s
     earliest: list  # the first allowed start of each visit, s from night start
+    first: int  # no visit starts before this offset from the night's start, s
     tight: dict  # (u, v, slot) -> (literal "u ends in slot, v follows closely", bound, lo, hi)
+    last_end: dict = field(default_factory=dict)  # restart: target -> end of its last done visit
+    fixed: tuple = ()  # restart: done calibrator visits (candidate, start)
 
 
 def room_s(cands: list[Candidate], shortest: int) -> int:
@@ -67,7 +70,8 @@ def room_s(cands: list[Candidate], shortest: int) -> int:
 
 
 def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanSettings,
-                acq: int, shortest: int, slots=None, move_cost=None):  # fmt: skip
+                acq: int, shortest: int, slots=None, move_cost=None,
+                origin: Start | None = None):  # fmt: skip
     """The CP-SAT model (see the module docstring) with ``reserve[k]`` seconds kept free
     before candidate k; returns the model and its handles.
 
@@ -82,15 +86,16 @@ def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanS
     targets = ctx.targets
     t0 = ctx.night.start_s
     m = cp_model.CpModel()
+    first = acq if origin is None else max(acq, int(np.ceil(origin.t_s - t0 + origin_gap(ctx))))
     pres, start, end, busy, size, begins, earliest = [], [], [], [], [], [], []
     for c, r in zip(cands, reserve, strict=True):
         d = int(np.ceil(c.duration_s))
-        spans = [(max(acq, int(np.ceil(a - t0))), int(np.floor(b - t0))) for a, b in c.starts]
+        spans = [(max(first, int(np.ceil(a - t0))), int(np.floor(b - t0))) for a, b in c.starts]
         spans = [(a, b) for a, b in spans if a <= b]
         p = m.new_bool_var(f"present_{c.id}")
         if not spans:
             m.add(p == 0)
-            spans = [(acq, acq)]
+            spans = [(first, first)]
         st = m.new_int_var_from_domain(cp_model.Domain.from_intervals(spans), f"start_{c.id}")
         if slots:
             rv = m.new_int_var(shortest, r, f"reserve_{c.id}")
@@ -121,7 +126,8 @@ def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanS
             sep = int(np.ceil(targets.min_separation_s[cands[a].target]))
             m.add(start[b] >= end[a] + sep).only_enforce_if(pres[b])
 
-    before, after = _brackets(m, ctx, cands, suits, s, pres, start, end, acq)
+    fixed = origin.fixed if origin else ()
+    before, after = _brackets(m, ctx, cands, suits, s, pres, start, end, acq, fixed)
     tight = {}
     if slots:
         tight = _tight_pairs(m, cands, reserve, room_s(cands, shortest), start, end, size, pres,
@@ -133,8 +139,16 @@ def build_model(ctx, cands: list[Candidate], suits, reserve: list[int], s: PlanS
         gain -= sum(int(round(w * longest[k])) * pres[k] for k in range(len(cands)))
         gain += sum(int(round(w * max(0.0, longest[v] - move_s(u, v)))) * q
                     for (u, v, _), (q, _, _, _) in tight.items())  # fmt: skip
+    if origin is not None and origin.previous:  # stability: keep what was planned
+        kept = {vid for vid, _ in origin.previous}
+        bonus = int(round(origin.stability_weight))
+        gain += sum(bonus * p for c, p in zip(cands, pres, strict=True) if c.id in kept)
     m.maximize(gain)
-    return m, Handles(pres, start, before, after, size, begins, list(reserve), earliest, tight)
+    handles = Handles(pres, start, before, after, size, begins, list(reserve), earliest, first,
+                      tight)  # fmt: skip
+    handles.last_end = dict(origin.last_end) if origin else {}
+    handles.fixed = tuple(fixed)
+    return m, handles
 
 
 def _tight_pairs(m, cands, reserve, room, start, end, size, pres, slots, t0):
@@ -166,8 +180,17 @@ def _tight_pairs(m, cands, reserve, room, start, end, size, pres, slots, t0):
     return tight
 
 
-def _brackets(m, ctx, cands, suits, s, pres, start, end, acq):
+def origin_gap(ctx) -> float:
+    """A safe bound of the first transition of a restarted queue: the worst slew or the
+    longest carriage travel, then acquisition."""
+    over, b = ctx.array_overheads, ctx.beams
+    travel = float(np.max((b.opd_max_m - b.opd_min_m) / b.rate_m_s)) if len(b) else 0.0
+    return max(np.pi / over.slew_rate_rad_s, travel) + over.settle_s + over.acquisition_s
+
+
+def _brackets(m, ctx, cands, suits, s, pres, start, end, acq, fixed=()):
     targets = ctx.targets
+    t0 = ctx.night.start_s
     gap = int(s.calibrator_gap_s)
     before, after = {}, {}
     cal_ks = [k for k, c in enumerate(cands) if c.value == 0]
@@ -192,7 +215,13 @@ def _brackets(m, ctx, cands, suits, s, pres, start, end, acq):
             before[(v, c)], after[(v, c)] = b, a
             b_v.append(b)
             a_v.append(a)
-        if not b_v:
+        for fc, fst in fixed:  # calibrators already done may open the bracket
+            if suits[cv.target, fc.target]:
+                b = m.new_bool_var(f"before_{cv.id}_{fc.id}")
+                m.add(start[v] <= int(np.floor(fst + fc.duration_s - t0 + gap))).only_enforce_if(b)
+                before[(v, f"done:{fc.id}")] = b
+                b_v.append(b)
+        if not b_v or not a_v:
             m.add(pres[v] == 0)
             continue
         m.add_bool_or(b_v).only_enforce_if(pres[v])
@@ -223,7 +252,7 @@ def model_hint(ctx, cands, suits, h: Handles, s: PlanSettings, timed, acq: int, 
         by_pair.setdefault((u, v), []).append((j, bound, lo - t0, hi - t0))
     for _ in range(len(seq) + 1):
         out, used_r, tight = [], {}, set()
-        free, last, prev = float(acq), {}, None
+        free, last, prev = float(h.first), dict(h.last_end), None
         for k in seq:
             c = cands[k]
             ready = last.get(c.target, -np.inf) + ctx.targets.min_separation_s[c.target]
@@ -247,7 +276,7 @@ def model_hint(ctx, cands, suits, h: Handles, s: PlanSettings, timed, acq: int, 
             last[c.target] = free
             prev = k
         triples = [(cands[k], t0 + off, None) for k, off in out]
-        br = brackets(triples, ctx.targets, suits, s.calibrator_gap_s)
+        br = brackets(triples, ctx.targets, suits, s.calibrator_gap_s, h.fixed)
         used = {cid for pair in br.values() if pair for cid in pair}
         keep = [k for k, _ in out
                 if (cands[k].value > 0 and br.get(cands[k].id, ()) is not None)
@@ -270,7 +299,8 @@ def _apply_hint(m, h: Handles, cands, hint, br, sizes=None, tight=frozenset()) -
             reserve = int((sizes or {}).get(k, h.reserve[k]))
             m.add_hint(h.size[k], reserve)
             m.add_hint(h.begin[k], st - reserve)
-    chosen_before = {(k_of[sci], k_of[pair[0]]) for sci, pair in br.items() if pair}
+    chosen_before = {(k_of[sci], k_of.get(pair[0], f"done:{pair[0]}"))
+                     for sci, pair in br.items() if pair}  # fmt: skip
     chosen_after = {(k_of[sci], k_of[pair[1]]) for sci, pair in br.items() if pair}
     for key, lit in h.before.items():
         m.add_hint(lit, key in chosen_before)
@@ -314,7 +344,7 @@ def solve(m, h: Handles, cands, s: PlanSettings, budget_s: float, t0: float,
 
 
 def optimize(ctx, cands: list[Candidate], suits, tr: GridTransitions, s: PlanSettings, timed,
-             budget_s: float) -> OptimizerResult:  # fmt: skip
+             budget_s: float, origin: Start | None = None) -> OptimizerResult:  # fmt: skip
     """Plan within ``budget_s`` seconds, warm-started from the exactly timed greedy night
     ``timed``; then bound.  The report gives both models' status, the planning model's
     objective and the bounding model's proven bound, in priority x hours."""
@@ -339,7 +369,8 @@ def optimize(ctx, cands: list[Candidate], suits, tr: GridTransitions, s: PlanSet
     longest_move = np.max(carriage, axis=0)
     move_cost = (s.carriage_weight, [float(longest_move[pos[c.target]]) for c in cands],
                  carriage_s)  # fmt: skip
-    m, h = build_model(ctx, cands, suits, plan_reserve, s, acq, shortest, slots, move_cost)
+    m, h = build_model(ctx, cands, suits, plan_reserve, s, acq, shortest, slots, move_cost,
+                       origin)  # fmt: skip
     hint, sizes, tight, br = model_hint(ctx, cands, suits, h, s, timed, acq, shortest)
     _apply_hint(m, h, cands, hint, br, sizes, tight)
     status, obj, _, wall, seq = solve(m, h, cands, s, PLAN_SHARE * budget_s, t0)
@@ -348,14 +379,14 @@ def optimize(ctx, cands: list[Candidate], suits, tr: GridTransitions, s: PlanSet
     report = {"status": status, "solve_s": round(wall, 3), "bound": None,
               "model_objective": None if obj is None else round(obj / 3600.0, 4)}  # fmt: skip
 
-    mb, hb = build_model(ctx, cands, suits, bound_reserve, s, acq, shortest)
+    mb, hb = build_model(ctx, cands, suits, bound_reserve, s, acq, shortest, origin=origin)
     if seq:  # the planning solution is feasible in the looser bounding model
         starts = [(k, st) for k, st in ((cands.index(c), start - t0) for c, start in seq)]
         from scheduler.timing import brackets
 
         _apply_hint(mb, hb, cands, starts,
                     brackets([(c, st, None) for c, st in seq], ctx.targets, suits,
-                             s.calibrator_gap_s))  # fmt: skip
+                             s.calibrator_gap_s, hb.fixed))  # fmt: skip
     b_status, _, bound, b_wall, _ = solve(mb, hb, cands, s, left, t0, BOUND_S_PER_UNIT)
     report["bound_status"] = b_status
     report["bound_s"] = round(b_wall, 3)

@@ -31,7 +31,7 @@ def _grid_transition(tr: GridTransitions, ia, ca, ib, cb):
         tr.beams, tr.over,
         g.alt_rad[ia, ca], g.az_rad[ia, ca], g.pds_m[:, ia, ca], g.k_low_m[ia, ca],
         g.k_high_m[ia, ca], g.alt_rad[ib, cb], g.az_rad[ib, cb], g.pds_m[:, ib, cb],
-        g.k_low_m[ib, cb], g.k_high_m[ib, cb],
+        g.k_low_m[ib, cb], g.k_high_m[ib, cb], exact=False,
     )  # fmt: skip
     return t.total_s, t.carriage_s, g.ok[ia, ca] & g.ok[ib, cb]
 

@@ -7,6 +7,7 @@ visit's times, transition and carriage paths.
 
 from __future__ import annotations
 
+import hashlib
 import json
 import os
 import tempfile
@@ -16,6 +17,7 @@ from pathlib import Path
 import numpy as np
 
 from scheduler.constraints import SkyContext
+from scheduler.errors import InputError, Problem
 from scheduler.plan_model import Plan, PlanSettings
 from scheduler.timefmt import iso_utc
 
@@ -72,8 +74,39 @@ def plan_dict(ctx: SkyContext, array, plan: Plan, settings: PlanSettings) -> dic
         ],
         "unscheduled": [{"target": n, "reason": r} for n, r in plan.unscheduled],
         "rules": rules,
+        "inputs": {"array": _input(array.source), "targets": _input(t.source)},
         "summary": plan.summary,
     }  # fmt: skip
+
+
+def file_sha256(path: str | Path) -> str | None:
+    try:
+        return hashlib.sha256(Path(path).read_bytes()).hexdigest()
+    except OSError:
+        return None
+
+
+def _input(source: str) -> dict:
+    """Where an input came from, so a replan can find it again, and its checksum."""
+    path = Path(source)
+    if not path.exists():
+        return {"path": source, "sha256": None}
+    return {"path": str(path.resolve()), "sha256": file_sha256(path)}
+
+
+def read_plan(path: str | Path) -> dict:
+    """A plan document; one-line errors for a missing file, bad JSON or another schema."""
+    src = str(path)
+    try:
+        doc = json.loads(Path(path).read_text(encoding="utf-8"))
+    except FileNotFoundError:
+        raise InputError(Problem(src, "", "file not found")) from None
+    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
+        raise InputError(Problem(src, "", f"not valid JSON: {exc}")) from None
+    if not isinstance(doc, dict) or doc.get("schema") != SCHEMA:
+        got = doc.get("schema") if isinstance(doc, dict) else None
+        raise InputError(Problem(src, "schema", f"expected {SCHEMA!r}, got {got!r}"))
+    return doc
 
 
 def _paths(lines, values) -> dict[str, float]:

@@ -75,3 +75,27 @@ class Plan:
     visits: tuple[Visit, ...]
     unscheduled: tuple[tuple[str, str], ...]  # (target, reason)
     summary: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Start:
+    """Where a queue starts when it is not the start of the night (a replan).
+
+    ``t_s``: nothing starts before it; ``target``: where the telescopes point then
+    (catalog index, None when unknown: the worst slew is assumed); ``opd_m``: carriage
+    paths then, one per line in use (None: free); ``fixed``: done calibrator visits as
+    (candidate, start_s), usable in brackets; ``done``: ids of done visits;
+    ``last_end``: per target, the end of its last done visit (for visit separation);
+    ``closures``: (from_s, to_s) when nothing may be observed; ``previous``: the old
+    plan's remaining visits as (id, start_s), the warm start and what stability keeps.
+    """
+
+    t_s: float
+    target: int | None = None
+    opd_m: tuple[float, ...] | None = None
+    fixed: tuple = ()
+    done: frozenset[str] = frozenset()
+    last_end: tuple[tuple[int, float], ...] = ()
+    closures: tuple[tuple[float, float], ...] = ()
+    previous: tuple[tuple[str, float], ...] = ()
+    stability_weight: float = 120.0  # priority x seconds per previously planned visit kept

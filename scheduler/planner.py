@@ -15,12 +15,13 @@ from scheduler.candidates import build_candidates, suitable_calibrators
 from scheduler.constraints import SkyContext
 from scheduler.geometry_grid import GeometryGrid
 from scheduler.greedy import GridTransitions, greedy_sequence
-from scheduler.plan_model import Plan, PlanSettings, Visit
+from scheduler.plan_model import Plan, PlanSettings, Start, Visit
+from scheduler.restart import restrict
 from scheduler.timing import settle_sequence, to_visits
 from scheduler.windows import observable_windows
 
 GRID_PAD_S = 20.0  # added to grid transitions, covering nearest-sample rounding
-RESERVE_S = 2.0  # of the time limit, kept for exact timing and verification
+RESERVE_S = 1.0  # of the time limit, kept for exact timing and verification
 PREPARE_S = 1.0  # of the time limit, assumed spent before the optimiser in deterministic mode
 
 
@@ -48,28 +49,63 @@ def objective(visits: list[Visit], ctx: SkyContext, settings: PlanSettings) -> f
     return science_value(visits, ctx) - settings.carriage_weight * idle_carriage_s(visits) / 3600.0
 
 
+def energy_bound(cands, ctx: SkyContext, origin: Start | None) -> float:
+    """An upper bound of any plan's science value by time alone: every visit needs its
+    length plus at least one acquisition and settling, and the night (from the restart)
+    has only so many seconds; the best value per second fills them first (a fractional
+    knapsack, ignoring windows, so never below the true optimum)."""
+    over = ctx.array_overheads
+    start = origin.t_s if origin else ctx.night.start_s
+    room = max(0.0, ctx.night.end_s - start)
+    items = sorted(((c.value / (c.duration_s + over.acquisition_s + over.settle_s),
+                     c.duration_s + over.acquisition_s + over.settle_s) for c in cands
+                    if c.value > 0), reverse=True)  # fmt: skip
+    total = 0.0
+    for density, size in items:
+        take = min(size, room)
+        total += density * take
+        room -= take
+        if room <= 0:
+            break
+    return total
+
+
 def plan_night(
     ctx: SkyContext,
     settings: PlanSettings,
     solver: str = "optimize",
     started_s: float | None = None,
+    origin: Start | None = None,
 ) -> Plan:
     """Plan the night.  ``settings.time_limit_s`` counts from ``started_s``
     (``time.perf_counter()`` when the command began; now by default), and a reserve is
-    kept for exact timing and verification after the optimiser stops."""
+    kept for exact timing and verification after the optimiser stops.  With ``origin``
+    the queue restarts mid-night from that state (see :mod:`scheduler.restart`), warm
+    started from ``origin.previous`` where it still fits."""
     t0 = time.perf_counter()
     started = t0 if started_s is None else started_s
     targets = ctx.targets
     windows = observable_windows(ctx)
     suits = suitable_calibrators(targets, ctx.beams.longest_baseline_m(), settings)
     cands = build_candidates(targets, windows, suits, settings)
+    if origin is not None:
+        cands = restrict(cands, origin, targets.min_separation_s)
     grid = GeometryGrid.build(ctx)
     tr = GridTransitions(grid, ctx.beams, ctx.array_overheads, GRID_PAD_S)
-    seq = greedy_sequence(cands, targets, suits, tr, settings, ctx.night.start_s, ctx.night.end_s)
-    timed, br = settle_sequence(ctx, seq, targets, suits, settings)
-    greedy_visits = to_visits(ctx, timed, br)
+    seq = greedy_sequence(cands, targets, suits, tr, settings, ctx.night.start_s, ctx.night.end_s,
+                          origin)  # fmt: skip
+    timed, br = settle_sequence(ctx, seq, targets, suits, settings, origin=origin)
+    greedy_visits = to_visits(ctx, timed, br, origin)
     summary = {"solver": "greedy", "greedy_value": round(science_value(greedy_visits, ctx), 4)}
     visits = greedy_visits
+    if origin is not None and origin.previous:  # the old order, where it still fits
+        by_id = {c.id: c for c in cands}
+        old = [(by_id[i], st) for i, st in origin.previous if i in by_id]
+        timed_p, br_p = settle_sequence(ctx, old, targets, suits, settings, False, origin)
+        kept = to_visits(ctx, timed_p, br_p, origin)
+        summary["previous_value"] = round(science_value(kept, ctx), 4)
+        if objective(kept, ctx, settings) >= objective(visits, ctx, settings):
+            visits, timed, summary["solver"] = kept, timed_p, "previous order"
     if solver == "optimize":
         from scheduler.optimizer import optimize
 
@@ -77,18 +113,20 @@ def plan_night(
             budget = settings.time_limit_s - RESERVE_S - PREPARE_S
         else:
             budget = settings.time_limit_s - (time.perf_counter() - started) - RESERVE_S
-        result = optimize(ctx, cands, suits, tr, settings, timed, budget)
+        result = optimize(ctx, cands, suits, tr, settings, timed, budget, origin)
         summary.update(result.report)
+        fallback = summary["solver"]
         if result.sequence is not None:
-            timed_o, br_o = settle_sequence(ctx, result.sequence, targets, suits, settings)
-            opt_visits = to_visits(ctx, timed_o, br_o)
-            if objective(opt_visits, ctx, settings) >= objective(greedy_visits, ctx, settings):
+            timed_o, br_o = settle_sequence(ctx, result.sequence, targets, suits, settings,
+                                            origin=origin)  # fmt: skip
+            opt_visits = to_visits(ctx, timed_o, br_o, origin)
+            if objective(opt_visits, ctx, settings) > objective(visits, ctx, settings) - 1e-9:
                 visits = opt_visits
                 summary["solver"] = "optimize"
             else:
-                summary["solver"] = "greedy (optimiser found nothing better)"
+                summary["solver"] = f"{fallback} (optimiser found nothing better)"
         else:
-            summary["solver"] = "greedy (optimiser returned nothing in time)"
+            summary["solver"] = f"{fallback} (optimiser returned nothing in time)"
     value = science_value(visits, ctx)
     summary.update({
         "science_hours": round(sum((v.end_s - v.start_s) / 3600.0 for v in visits
@@ -101,17 +139,26 @@ def plan_night(
     summary["objective"] = round(objective(visits, ctx, settings), 4)
     summary["greedy_idle_carriage_s"] = round(idle_carriage_s(greedy_visits), 1)
     summary["carriage_wait_s"] = round(carriage_wait_s(visits), 1)
+    if solver == "optimize":  # a second valid bound, cheap and sometimes tighter
+        quick = energy_bound(cands, ctx, origin)
+        summary["bound"] = min(quick, summary.get("bound") or quick)
     if summary.get("bound") is not None:
         obj = summary["objective"]
         bound = max(summary["bound"], obj)
         summary["bound"] = round(bound, 4)
         summary["gap"] = round((bound - obj) / bound, 4) if bound > 0 else 0.0
-    return Plan(tuple(visits), tuple(_unscheduled(ctx, windows, suits, cands, visits)), summary)
+    done = dict.fromkeys(range(len(targets)), 0)
+    for vid in origin.done if origin else ():
+        name = vid.rsplit("#", 1)[0]
+        if name in targets.names:
+            done[targets.index(name)] += 1
+    unscheduled = _unscheduled(ctx, windows, suits, cands, visits, done)
+    return Plan(tuple(visits), tuple(unscheduled), summary)
 
 
-def _unscheduled(ctx, windows, suits, cands, visits):
+def _unscheduled(ctx, windows, suits, cands, visits, done_before):
     t = ctx.targets
-    done: dict[int, int] = {}
+    done: dict[int, int] = {k: n for k, n in done_before.items() if n}
     for v in visits:
         done[v.target] = done.get(v.target, 0) + 1
     cal_ok = {c.target for c in cands if c.value == 0}

@@ -55,3 +55,13 @@ def minimax_move(g_m, rate_m_s, dk_low_m, dk_high_m):
 def move_time_s(d_m, rate_m_s) -> np.ndarray:
     """Time for every carriage to travel ``d_m`` (..., L) at its own rate."""
     return np.max(np.abs(np.asarray(d_m, float)) / np.asarray(rate_m_s, float), axis=-1)
+
+
+def move_upper_bound(g_m, rate_m_s, dk_low_m, dk_high_m):
+    """A cheap upper bound of :func:`minimax_move`: the shift that centres the moves,
+    ``-(max g + min g) / 2`` (optimal when all rates are equal, DOMAIN.md section 3),
+    clamped to the span.  Any allowed shift costs at least the minimum, so the result
+    is never below the exact move time.  Returns ``(dk_m, move_s)``."""
+    g = np.asarray(g_m, float)
+    dk = np.clip(-0.5 * (g.max(axis=-1) + g.min(axis=-1)), dk_low_m, dk_high_m)
+    return dk, np.max(np.abs(g + dk[..., None]) / np.asarray(rate_m_s, float), axis=-1)

@@ -14,8 +14,9 @@ import numpy as np
 
 from scheduler.constraints import SkyContext, evaluate
 from scheduler.delay import line_paths
-from scheduler.plan_model import Candidate, PlanSettings, Visit
-from scheduler.transitions import transition
+from scheduler.plan_model import Candidate, PlanSettings, Start, Visit
+from scheduler.reposition import minimax_move
+from scheduler.transitions import Transition, slew_time_s, transition
 
 TIME_PAD_S = 1.0  # seconds added to each exact transition, against rounding
 PROFILE_POINTS = 9  # samples of a visit for its altitude range and end geometry
@@ -35,19 +36,56 @@ def _exact(ctx, ia, ta, ib, tb):
     return tr, (la, ha), (lb, hb)
 
 
+def _from_origin(ctx: SkyContext, origin: Start, ib: int, tb: float) -> Transition:
+    """The first transition of a restarted queue: from where the telescopes point and
+    the carriages stand at ``origin.t_s`` to target ``ib`` at ``tb``.  ``dk_m`` holds
+    the common constant K chosen for the first visit (the minimax move from the logged
+    carriage paths).  An unknown pointing costs the worst slew, half a turn."""
+    over = ctx.array_overheads
+    eb, lb, hb = _state(ctx, ib, tb)
+    if origin.target is None:
+        slew = np.pi / over.slew_rate_rad_s + over.settle_s
+    else:
+        ea, _, _ = _state(ctx, origin.target, origin.t_s)
+        slew = float(slew_time_s(ea.alt_rad[0], ea.az_rad[0], eb.alt_rad[0], eb.az_rad[0], over))
+    if origin.opd_m is None:
+        k, carriage = 0.5 * (lb + hb), 0.0
+    else:  # line i then adds K + g_i: choose K in the span to move least
+        g = eb.pds_m[:, 0] - ctx.beams.path_m - np.asarray(origin.opd_m)
+        k, move = minimax_move(g, ctx.beams.rate_m_s, lb, max(lb, hb))
+        carriage = float(move) + over.settle_s
+    return Transition(np.asarray(slew), np.asarray(carriage), np.asarray(over.acquisition_s),
+                      np.asarray(float(k)))  # fmt: skip
+
+
 def time_sequence(
-    ctx: SkyContext, seq: list[tuple[Candidate, float]], compact: bool = True
-) -> list[tuple[Candidate, float, object]]:
+    ctx: SkyContext, seq: list[tuple[Candidate, float]], compact: bool = True,
+    origin: Start | None = None,
+) -> list[tuple[Candidate, float, object]]:  # fmt: skip
     """Exact start of each visit: [(candidate, start, transition or None)]; visits that
-    no longer fit in their windows are left out."""
+    no longer fit in their windows are left out.  With ``origin`` the queue starts from
+    that state (a replan) instead of the start of the night."""
     out = []
     prev = None
-    last_end: dict[int, float] = {}
+    last_end: dict[int, float] = dict(origin.last_end) if origin else {}
     targets = ctx.targets
     for cand, hint in seq:
         ready = last_end.get(cand.target, -np.inf) + targets.min_separation_s[cand.target]
         lo = ready if compact else max(ready, hint)
-        if prev is None:
+        if prev is None and origin is not None:
+            start = cand.earliest_start(max(lo, origin.t_s + ctx.array_overheads.acquisition_s))
+            tr = None
+            for attempt in range(6):
+                if start is None:
+                    break
+                tr = _from_origin(ctx, origin, cand.target, start)
+                need = origin.t_s + float(tr.total_s) + TIME_PAD_S
+                if need <= start:
+                    break
+                start = cand.earliest_start(need + attempt * TIME_PAD_S)
+            else:
+                start = None
+        elif prev is None:
             first = ctx.night.start_s + ctx.array_overheads.acquisition_s
             start, tr = cand.earliest_start(max(lo, first)), None
         else:
@@ -72,11 +110,14 @@ def time_sequence(
     return out
 
 
-def brackets(timed, targets, suits: np.ndarray, gap_s: float) -> dict[str, tuple[str, str] | None]:
+def brackets(
+    timed, targets, suits: np.ndarray, gap_s: float, fixed=()
+) -> dict[str, tuple[str, str] | None]:
     """For each science visit that needs calibrators: the (before, after) calibrator
-    visit ids, nearest in time, or None if either is missing."""
+    visit ids, nearest in time, or None if either is missing.  ``fixed`` adds
+    calibrator visits already done, as (candidate, start)."""
     out = {}
-    cals = [(c, st) for c, st, _ in timed if c.value == 0]
+    cals = [(c, st) for c, st, _ in timed if c.value == 0] + list(fixed)
     for c, st, _ in timed:
         if c.value == 0 or not targets.needs_calibrator[c.target]:
             continue
@@ -92,15 +133,16 @@ def brackets(timed, targets, suits: np.ndarray, gap_s: float) -> dict[str, tuple
     return out
 
 
-def settle_sequence(ctx, seq, targets, suits, s: PlanSettings, compact: bool = True):
+def settle_sequence(ctx, seq, targets, suits, s: PlanSettings, compact: bool = True,
+                    origin: Start | None = None):  # fmt: skip
     """Time exactly, then drop broken brackets and idle calibrators until stable.
 
     Compaction can pull a calibrator so early that it no longer brackets its science
     visit; the sequence is therefore also timed without compaction (each visit no
     earlier than its hint) and the better of the two kept."""
-    best = _settle(ctx, seq, targets, suits, s, compact)
+    best = _settle(ctx, seq, targets, suits, s, compact, origin)
     if compact:
-        plain = _settle(ctx, seq, targets, suits, s, False)
+        plain = _settle(ctx, seq, targets, suits, s, False, origin)
         if _value(plain[0], targets) > _value(best[0], targets):
             best = plain
     return best
@@ -110,11 +152,12 @@ def _value(timed, targets) -> float:
     return float(sum(c.value for c, _, _ in timed))
 
 
-def _settle(ctx, seq, targets, suits, s: PlanSettings, compact: bool):
+def _settle(ctx, seq, targets, suits, s: PlanSettings, compact: bool, origin):
     seq = list(seq)
+    fixed = origin.fixed if origin else ()
     for _ in range(len(seq) + 1):
-        timed = time_sequence(ctx, seq, compact)
-        br = brackets(timed, targets, suits, s.calibrator_gap_s)
+        timed = time_sequence(ctx, seq, compact, origin)
+        br = brackets(timed, targets, suits, s.calibrator_gap_s, fixed)
         used = {cid for pair in br.values() if pair for cid in pair}
         keep_ids = {c.id for c, _, _ in timed if c.value > 0 and br.get(c.id, ()) is not None}
         keep_ids |= {c.id for c, _, _ in timed if c.value == 0 and c.id in used}
@@ -124,7 +167,7 @@ def _settle(ctx, seq, targets, suits, s: PlanSettings, compact: bool):
     return timed, br
 
 
-def to_visits(ctx: SkyContext, timed, br) -> list[Visit]:
+def to_visits(ctx: SkyContext, timed, br, origin: Start | None = None) -> list[Visit]:
     """Visits with carriage paths: K at each end of a transition from its minimax
     shift, kept mid-way in the span that allows it.  Each visit's geometry is evaluated
     once, at nine instants from its start to its end."""
@@ -143,6 +186,9 @@ def to_visits(ctx: SkyContext, timed, br) -> list[Visit]:
     k_end = [0.0] * n
     for j, (_, _, tr) in enumerate(timed):
         lb, hb = span(profiles[j], 0)
+        if j == 0 and tr is not None:  # a restart: K from the move off the logged paths
+            k_start[j] = float(np.clip(float(tr.dk_m), lb, hb))
+            continue
         if j == 0 or tr is None:
             k_start[j] = 0.5 * (lb + hb)
             continue
@@ -168,7 +214,10 @@ def to_visits(ctx: SkyContext, timed, br) -> list[Visit]:
         slew = float(tr.slew_s) if tr is not None else 0.0
         carriage = float(tr.carriage_s) if tr is not None else 0.0
         acq = float(tr.acquisition_s) if tr is not None else ctx.array_overheads.acquisition_s
-        gap = st - (timed[j - 1][1] + timed[j - 1][0].duration_s) if j else acq
+        if j:
+            gap = st - (timed[j - 1][1] + timed[j - 1][0].duration_s)
+        else:
+            gap = st - origin.t_s if origin else acq
         visits.append(Visit(
             id=cand.id, target=cand.target, start_s=st, end_s=st + cand.duration_s,
             slew_s=slew, carriage_s=carriage, acquisition_s=acq, transition_s=gap,

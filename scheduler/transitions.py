@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from scheduler.model import Beams, Overheads
-from scheduler.reposition import minimax_move
+from scheduler.reposition import minimax_move, move_upper_bound
 
 
 @dataclass(frozen=True, eq=False)
@@ -39,15 +39,17 @@ def slew_time_s(alt_a, az_a, alt_b, az_b, over: Overheads) -> np.ndarray:
 
 def transition(
     beams: Beams, over: Overheads, alt_a, az_a, pds_a, low_a, high_a, alt_b, az_b, pds_b,
-    low_b, high_b,
+    low_b, high_b, exact: bool = True,
 ) -> Transition:  # fmt: skip
     """From the end of A to the start of B.  ``pds_*`` are (L, ...) projected paths,
-    ``low_*``/``high_*`` the feasible K span at each instant."""
+    ``low_*``/``high_*`` the feasible K span at each instant.  ``exact=False`` takes the
+    cheaper upper bound of the carriage move (for bounds over many pairs)."""
     slew = slew_time_s(alt_a, az_a, alt_b, az_b, over)
     g = np.moveaxis(np.asarray(pds_b) - np.asarray(pds_a), 0, -1)  # (..., L)
     dk_lo = np.asarray(low_b) - np.asarray(high_a)
     dk_hi = np.asarray(high_b) - np.asarray(low_a)
-    dk, move = minimax_move(g, beams.rate_m_s, dk_lo, np.maximum(dk_hi, dk_lo))
+    mover = minimax_move if exact else move_upper_bound
+    dk, move = mover(g, beams.rate_m_s, dk_lo, np.maximum(dk_hi, dk_lo))
     carriage = move + over.settle_s
     acq = np.full(np.shape(slew), over.acquisition_s)
     return Transition(slew, carriage, acq, dk)

@@ -38,15 +38,35 @@ def _enu(alt, az):
     return np.stack([np.cos(alt) * np.sin(az), np.cos(alt) * np.cos(az), np.sin(alt)], -1)
 
 
+def _sample_all(array, targets, visits):
+    """astropy directions of every minute of every visit in one transform; also the Sun
+    and the Moon then.  Returns per-visit slices into the flat arrays."""
+    idx, times, cuts = [], [], []
+    for v in visits:
+        t = np.append(np.arange(float(v["start_s"]), float(v["end_s"]), SAMPLE_S), v["end_s"])
+        cuts.append((len(times), len(times) + len(t)))
+        idx += [targets.index(v["target"])] * len(t)
+        times += list(t)
+    if not times:
+        return None
+    idx, times = np.array(idx), np.array(times)
+    alt, az, frame = _sky(array, targets, idx, times)
+    sun = get_body("sun", frame.obstime, location=frame.location).transform_to(frame)
+    moon = get_body("moon", frame.obstime, location=frame.location).transform_to(frame)
+    return alt, az, sun.alt.rad, sun.az.rad, moon.alt.rad, moon.az.rad, cuts
+
+
 def verify_plan(doc: dict, array: ArrayModel, targets: Targets) -> list[str]:
     """Every way in which the plan breaks a rule, as sentences (empty: valid)."""
     bad: list[str] = []
     lim, over = array.limits, array.overheads
     config = array.configuration(doc["configuration"])
-    feeds = dict(config.feeds)
+    out = set(doc.get("out", []))
+    feeds = {ln: st for ln, st in config.feeds if ln not in out and st not in out}
     lines = [d["name"] for d in doc["delay_lines"]]
     if set(lines) != set(feeds):
-        bad.append(f"delay lines {sorted(lines)} are not those of {config.name}")
+        bad.append(f"delay lines {sorted(lines)} are not those of {config.name} "
+                   f"(less {sorted(out)})")  # fmt: skip
         return bad
     pos = np.array([array.station(feeds[ln]).enu_m for ln in lines])
     path = np.array([array.station(feeds[ln]).internal_path_m + config.offset_m(ln)
@@ -56,25 +76,28 @@ def verify_plan(doc: dict, array: ArrayModel, targets: Targets) -> list[str]:
     hi_m = np.array([d.opd_max_m for d in dl])
     rate = np.array([d.max_rate_m_s for d in dl])
     masks = [array.station(feeds[ln]).horizon for ln in lines]
-    night_start, night_end = (
-        parse_utc(doc["night"]["start_utc"]),
-        parse_utc(doc["night"]["end_utc"]),
-    )
+    night_start = parse_utc(doc["night"]["start_utc"])
+    night_end = parse_utc(doc["night"]["end_utc"])
     rules = doc.get("rules", {})
-    visits = doc["visits"]
+    visits = [v for v in doc["visits"] if v["target"] in targets.names]
+    bad += [f"{v['id']}: target {v['target']!r} is not in the catalog"
+            for v in doc["visits"] if v["target"] not in targets.names]  # fmt: skip
+    start_state = doc.get("start_state")
+    closures = [(parse_utc(a), parse_utc(b)) for a, b in doc.get("closures", [])]
+    sky = _sample_all(array, targets, visits)
     prev = None
-    for v in visits:
+    if start_state is not None:
+        prev = ("the start state", start_state)
+    for n, v in enumerate(visits):
         vid = v["id"]
-        try:
-            i = targets.index(v["target"])
-        except KeyError:
-            bad.append(f"{vid}: target {v['target']!r} is not in the catalog")
-            continue
+        i = targets.index(v["target"])
         t0, t1 = float(v["start_s"]), float(v["end_s"])
         if t0 < night_start - TIME_TOL_S or t1 > night_end + TIME_TOL_S:
             bad.append(f"{vid}: outside the night")
-        times = np.append(np.arange(t0, t1, SAMPLE_S), t1)
-        alt, az, frame = _sky(array, targets, np.full(times.shape, i), times)
+        if any(t0 < b - TIME_TOL_S and t1 > a + TIME_TOL_S for a, b in closures):
+            bad.append(f"{vid}: overlaps a closure")
+        lo_k, hi_k = sky[6][n]
+        alt, az = sky[0][lo_k:hi_k], sky[1][lo_k:hi_k]
         if (alt < lim.min_altitude_rad - ALT_TOL_RAD).any() or (
             alt > lim.max_altitude_rad + ALT_TOL_RAD
         ).any():
@@ -88,15 +111,15 @@ def verify_plan(doc: dict, array: ArrayModel, targets: Targets) -> list[str]:
         k_hi = (hi_m + path - pds).min(axis=1)
         if (k_lo > k_hi + OPD_TOL_M).any():
             bad.append(f"{vid}: not delay-feasible at every minute")
-        sun = get_body("sun", frame.obstime, location=frame.location).transform_to(frame)
-        sun_sep = np.arccos(np.clip(np.sum(s * _enu(sun.alt.rad, sun.az.rad), -1), -1, 1))
-        if (sun.alt.rad > lim.sun_altitude_max_rad + 1e-4).any():
+        sun_alt, sun_az = sky[2][lo_k:hi_k], sky[3][lo_k:hi_k]
+        moon_alt, moon_az = sky[4][lo_k:hi_k], sky[5][lo_k:hi_k]
+        sun_sep = np.arccos(np.clip(np.sum(s * _enu(sun_alt, sun_az), -1), -1, 1))
+        if (sun_alt > lim.sun_altitude_max_rad + 1e-4).any():
             bad.append(f"{vid}: the Sun is above the night limit")
         if (sun_sep < lim.sun_separation_min_rad).any():
             bad.append(f"{vid}: too close to the Sun")
-        moon = get_body("moon", frame.obstime, location=frame.location).transform_to(frame)
-        m_sep = np.arccos(np.clip(np.sum(s * _enu(moon.alt.rad, moon.az.rad), -1), -1, 1))
-        if ((m_sep < lim.moon_separation_min_rad - 1e-3) & (moon.alt.rad > 0)).any():
+        m_sep = np.arccos(np.clip(np.sum(s * _enu(moon_alt, moon_az), -1), -1, 1))
+        if ((m_sep < lim.moon_separation_min_rad - 1e-3) & (moon_alt > 0)).any():
             bad.append(f"{vid}: too close to the Moon")
         ws, we = targets.window_start_s[i], targets.window_end_s[i]
         if not np.isnan(ws) and (t0 < ws - TIME_TOL_S or t1 > we + TIME_TOL_S):
@@ -109,27 +132,60 @@ def verify_plan(doc: dict, array: ArrayModel, targets: Targets) -> list[str]:
             if kk.max() - kk.min() > 2 * OPD_TOL_M:
                 bad.append(f"{vid}: {key} inconsistent with the geometry "
                            f"({(kk.max() - kk.min()) * 1e3:.1f} mm)")  # fmt: skip
-        if prev is not None:
-            pv, p_alt, p_az, p_x = prev
-            gap = t0 - float(pv["end_s"])
-            if gap < -TIME_TOL_S:
-                bad.append(f"{vid}: overlaps {pv['id']}")
-            daz = abs(np.angle(np.exp(1j * (az[0] - p_az))))
-            slew = max(daz, abs(alt[0] - p_alt)) / over.slew_rate_rad_s + over.settle_s
-            x0 = np.array([v["opd_start_m"][ln] for ln in lines])
-            carriage = float(np.max(np.abs(x0 - p_x) / rate)) + over.settle_s
-            need = max(slew, carriage) + over.acquisition_s
-            if gap < need - TIME_TOL_S:
-                bad.append(f"{vid}: transition of {gap:.0f} s is shorter than the "
-                           f"{need:.0f} s the telescopes and carriages need")  # fmt: skip
-        elif t0 < night_start + over.acquisition_s - TIME_TOL_S:
-            bad.append(f"{vid}: no time for the first acquisition")
+        x0 = np.array([v["opd_start_m"][ln] for ln in lines])
+        bad += _transition(vid, prev, t0, alt[0], az[0], x0, array, targets, lines, rate, over,
+                           night_start)  # fmt: skip
         prev = (v, alt[-1], az[-1], np.array([v["opd_end_m"][ln] for ln in lines]))
-    bad += _brackets(visits, targets, array, rules, pos)
+    done_cals = [d for d in doc.get("done", []) if d.get("kind") == "calibrator"
+                 and d["target"] in targets.names]  # fmt: skip
+    bad += _brackets(visits, targets, array, rules, pos, done_cals)
     return bad
 
 
-def _brackets(visits, targets: Targets, array, rules: dict, pos) -> list[str]:
+def _transition(vid, prev, t0, alt, az, x0, array, targets, lines, rate, over, night_start):
+    """Is there time before this visit, from the previous visit or the start state?"""
+    if prev is None:
+        if t0 < night_start + over.acquisition_s - TIME_TOL_S:
+            return [f"{vid}: no time for the first acquisition"]
+        return []
+    if prev[0] == "the start state":
+        state = prev[1]
+        end = parse_utc(state["utc"])
+        if t0 < end - TIME_TOL_S:
+            return [f"{vid}: starts before the replan's start {state['utc']}"]
+        name = state.get("pointing")
+        if name in targets.names:
+            p_alt, p_az, _ = _sky(array, targets, np.array([targets.index(name)]), np.array([end]))
+            daz = abs(np.angle(np.exp(1j * (az - p_az[0]))))
+            slew = max(daz, abs(alt - p_alt[0])) / over.slew_rate_rad_s + over.settle_s
+        else:
+            slew = np.pi / over.slew_rate_rad_s + over.settle_s
+        opd = state.get("opd_m")
+        carriage = 0.0
+        if opd:
+            x_prev = np.array([opd.get(ln, np.nan) for ln in lines])
+            ok = ~np.isnan(x_prev)
+            carriage = float(np.max(np.abs(x0 - x_prev)[ok] / rate[ok], initial=0.0))
+            carriage += over.settle_s
+        label = "the start state"
+    else:
+        pv, p_alt, p_az, p_x = prev
+        end = float(pv["end_s"])
+        if t0 < end - TIME_TOL_S:
+            return [f"{vid}: overlaps {pv['id']}"]
+        daz = abs(np.angle(np.exp(1j * (az - p_az))))
+        slew = max(daz, abs(alt - p_alt)) / over.slew_rate_rad_s + over.settle_s
+        carriage = float(np.max(np.abs(x0 - p_x) / rate)) + over.settle_s
+        label = pv["id"]
+    need = max(slew, carriage) + over.acquisition_s
+    gap = t0 - end
+    if gap < need - TIME_TOL_S:
+        return [f"{vid}: transition of {gap:.0f} s after {label} is shorter than the "
+                f"{need:.0f} s the telescopes and carriages need"]  # fmt: skip
+    return []
+
+
+def _brackets(visits, targets: Targets, array, rules: dict, pos, done_cals=()) -> list[str]:
     gap = float(rules.get("calibrator_gap_min", 60.0)) * 60.0
     max_sep = float(rules.get("calibrator_max_sep_deg", 10.0))
     max_dmag = float(rules.get("calibrator_max_dmag", 1.5))
@@ -138,6 +194,7 @@ def _brackets(visits, targets: Targets, array, rules: dict, pos) -> list[str]:
     longest = float(np.max(np.linalg.norm(pos[:, None] - pos[None], axis=-1)))
     known = [v for v in visits if v["target"] in targets.names]
     cals = [v for v in known if not targets.is_science[targets.index(v["target"])]]
+    cals += list(done_cals)
     bad = []
     for v in known:
         i = targets.index(v["target"])

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import json
 from dataclasses import dataclass
 
 from scheduler.array_file import load_array
@@ -10,7 +9,7 @@ from scheduler.catalog import load_targets
 from scheduler.commands.common import Inputs
 from scheduler.errors import InputError, Problem
 from scheduler.plan_export import write_csv, write_votable
-from scheduler.plan_io import SCHEMA, plan_dict, write_plan
+from scheduler.plan_io import plan_dict, read_plan, write_plan
 from scheduler.plan_model import PlanSettings
 from scheduler.planner import plan_night
 from scheduler.timeline_rows import timeline_view
@@ -70,15 +69,7 @@ def write_outputs(ctx, plan, doc: dict, outputs: Outputs) -> None:
 
 
 def verify_file(plan_path: str, array_path: str, targets_path: str) -> dict:
-    try:
-        doc = json.loads(open(plan_path, encoding="utf-8").read())
-    except FileNotFoundError:
-        raise InputError(Problem(plan_path, "", "file not found")) from None
-    except (json.JSONDecodeError, UnicodeDecodeError) as exc:
-        raise InputError(Problem(plan_path, "", f"not valid JSON: {exc}")) from None
-    if not isinstance(doc, dict) or doc.get("schema") != SCHEMA:
-        got = doc.get("schema") if isinstance(doc, dict) else None
-        raise InputError(Problem(plan_path, "schema", f"expected {SCHEMA!r}, got {got!r}"))
+    doc = read_plan(plan_path)
     array, targets = load_array(array_path), load_targets(targets_path)
     try:
         problems = verify_plan(doc, array, targets)

@@ -1,0 +1,184 @@
+"""Replanning mid-night from a plan, the night log and the time now.
+
+Rules checked are those of the replanning contract in README.md (common practice, no
+source): done visits are never repeated, nothing starts before now or before a closure
+ends, the first transition leaves from the logged carriage paths, and every replan
+passes the independent verifier.  The night is the fictional demo night.
+"""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from scheduler.array_file import parse_array
+from scheduler.catalog import parse_targets, parse_utc
+from scheduler.cli import main
+from scheduler.constraints import DELAY_BASE, SkyContext
+from scheduler.night import find_night, parse_night
+from scheduler.night_log import append_record, read_log
+from scheduler.replan import plan_diff
+from scheduler.windows import observable_windows
+
+ROOT = Path(__file__).resolve().parent.parent
+ARRAY = str(ROOT / "catalogs" / "demo_array.toml")
+TARGETS = str(ROOT / "catalogs" / "demo_targets.csv")
+TIME_TOL_S = 1.0
+
+
+@pytest.fixture(scope="module")
+def tonight(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("night")
+    plan = folder / "tonight.json"
+    args = ["plan", "--array", ARRAY, "--config", "medium", "--targets", TARGETS,
+            "--night", "2027-04-18", "--solver", "greedy", "--out", str(plan)]  # fmt: skip
+    assert main(args) == 0
+    return folder, plan, json.loads(plan.read_text())
+
+
+def _replan(plan, log, now, out, *extra):
+    return main(["replan", "--plan", str(plan), "--log", str(log), "--now", now,
+                 "--out", str(out), "--solver", "greedy", *extra])  # fmt: skip
+
+
+def test_closure_and_done_visits(tonight, tmp_path):
+    folder, plan, doc = tonight
+    first, second = doc["visits"][0], doc["visits"][1]
+    log = tmp_path / "night.jsonl"
+    append_record(log, {"event": "done", "visit": first["id"], "at_utc": first["end_utc"]})
+    append_record(log, {"event": "done", "visit": second["id"], "at_utc": second["end_utc"]})
+    closure_end = parse_utc(second["end_utc"]) + 5400.0  # a 90-minute closure
+    append_record(log, {"event": "closed", "from_utc": second["end_utc"],
+                        "to_utc": _iso(closure_end)})  # fmt: skip
+    x = {ln: 60.0 for ln in first["opd_end_m"]}
+    append_record(log, {"event": "carriages", "at_utc": _iso(closure_end - 60), "opd_m": x})
+    now = _iso(parse_utc(second["end_utc"]) + 600.0)
+    out = tmp_path / "new.json"
+    assert _replan(plan, log, now, out) == 0
+    new = json.loads(out.read_text())
+    ids = [v["id"] for v in new["visits"]]
+    assert first["id"] not in ids and second["id"] not in ids
+    assert {v["id"] for v in new["done"]} == {first["id"], second["id"]}
+    assert all(v["start_s"] >= closure_end - TIME_TOL_S for v in new["visits"])
+    assert new["replanned_from"]["now_utc"] == now
+    # the first transition is long enough from the logged carriage paths
+    v0 = new["visits"][0]
+    rates = {d["name"]: d["max_rate_m_s"] for d in new["delay_lines"]}
+    need = max(abs(v0["opd_start_m"][ln] - 60.0) / rates[ln] for ln in rates) + 480.0
+    assert v0["start_s"] - closure_end >= need - TIME_TOL_S
+    assert set(new["diff"]) == {"kept", "moved", "dropped", "added"}
+    # verify it again from the file, independently
+    assert main(["verify", str(out), "--array", ARRAY, "--targets", TARGETS]) == 0
+    assert plan.read_text() == json.dumps(doc, indent=2) + "\n"  # the old plan is untouched
+
+
+def test_station_out_reduces_the_configuration(tonight, tmp_path):
+    _, plan, doc = tonight
+    log = tmp_path / "night.jsonl"
+    now = doc["visits"][3]["start_utc"]
+    append_record(log, {"event": "out", "station": "jasper", "at_utc": now})
+    out = tmp_path / "new.json"
+    assert _replan(plan, log, now, out) == 0
+    new = json.loads(out.read_text())
+    assert new["out"] == ["jasper"]
+    assert "rail-6" not in {d["name"] for d in new["delay_lines"]}  # jasper fed rail-6
+    assert all(v["start_s"] >= parse_utc(now) - TIME_TOL_S for v in new["visits"])
+
+
+def test_out_station_frees_targets_it_alone_blocked():
+    """Two short baselines and one long one: a target that only the long baseline's
+    delay blocks becomes observable when its station is out."""
+    array = parse_array({
+        "site": {"name": "test", "latitude_deg": -26.1, "longitude_deg": -66.2, "height_m": 3000},
+        "stations": [
+            {"name": "near", "east_m": 0, "north_m": 0, "up_m": 0, "internal_path_m": 50},
+            {"name": "next", "east_m": 20, "north_m": 0, "up_m": 0, "internal_path_m": 50},
+            {"name": "far", "east_m": 400, "north_m": 0, "up_m": 0, "internal_path_m": 50},
+        ],
+        "delay_lines": [{"name": f"l{k}", "opd_min_m": 0, "opd_max_m": 100, "max_rate_m_s": 1}
+                        for k in range(3)],
+        "configurations": [{"name": "c", "feeds": {"l0": "near", "l1": "next", "l2": "far"}}],
+    })  # fmt: skip
+    import pandas as pd
+
+    targets = parse_targets(pd.DataFrame({"name": ["east-low"], "ra": ["170"], "dec": ["-20"],
+                                          "duration_min": ["30"]}), "test")  # fmt: skip
+    night = find_night(array, parse_night("2027-04-18"))
+    full = observable_windows(SkyContext.prepare(array, array.beams("c"), targets, night))[0]
+    less = observable_windows(
+        SkyContext.prepare(array, array.beams("c", frozenset({"far"})), targets, night)
+    )[0]
+    assert any(code >= DELAY_BASE for _, _, code in full.excluded)
+    assert less.hours > full.hours
+    assert not any(code >= DELAY_BASE for _, _, code in less.excluded)
+
+
+def test_diff_on_a_constructed_case():
+    old = [{"id": "a", "start_s": 0.0, "start_utc": "x"}, {"id": "b", "start_s": 100.0,
+           "start_utc": "y"}, {"id": "c", "start_s": 200.0, "start_utc": "z"},
+           {"id": "d", "start_s": 300.0, "start_utc": "w"}]  # fmt: skip
+    new = [{"id": "b", "start_s": 130.0, "start_utc": "y2"},
+           {"id": "c", "start_s": 900.0, "start_utc": "z2"},
+           {"id": "e", "start_s": 1000.0, "start_utc": "v"}]  # fmt: skip
+    d = plan_diff(old, new, done={"a"})
+    assert d == {"kept": ["b"], "moved": [{"id": "c", "from_utc": "z", "to_utc": "z2"}],
+                 "dropped": ["d"], "added": ["e"]}  # fmt: skip
+
+
+def test_log_survives_a_cut_last_line(tmp_path):
+    log = tmp_path / "night.jsonl"
+    append_record(log, {"event": "done", "visit": "v#1", "at_utc": "2027-04-19T01:00:00Z"})
+    append_record(log, {"event": "done", "visit": "v#2", "at_utc": "2027-04-19T02:00:00Z"})
+    with open(log, "a") as f:
+        f.write('{"schema":"opdplan-log/1","event":"do')  # a crash mid-write
+    records, warnings = read_log(log)
+    assert [r.visit for r in records] == ["v#1", "v#2"]
+    assert len(warnings) == 1 and "line 3" in warnings[0]
+    append_record(log, {"event": "aborted", "visit": "v#3", "at_utc": "2027-04-19T03:00:00Z"})
+    records, warnings = read_log(log)
+    assert [r.visit for r in records] == ["v#1", "v#2", "v#3"]  # nothing lost
+    assert len(warnings) == 1  # the cut record, now on a line of its own, is still skipped
+    with open(log, "a") as f:
+        f.write("not json at all\n")
+    with pytest.raises(Exception, match="line 5: not a JSON record"):
+        read_log(log)
+
+
+@pytest.mark.parametrize(
+    ("record", "now_shift", "expected"),
+    [({"event": "done", "visit": "nobody#1", "at_utc": "2027-04-19T01:00:00Z"}, 0.0,
+      "visit 'nobody#1' is not in"),
+     (None, 86400.0, "--now: "),
+     ({"event": "closed", "from_utc": "2027-04-19T03:00:00Z", "to_utc": "2027-04-19T02:00:00Z"},
+      0.0, "the closure ends before it starts"),
+     ({"schema": "other/9", "event": "done"}, 0.0, "schema: expected 'opdplan-log/1'")],
+)  # fmt: skip
+def test_bad_replan_input(tonight, tmp_path, capsys, record, now_shift, expected):
+    _, plan, doc = tonight
+    log = tmp_path / "night.jsonl"
+    log.write_text("" if record is None else json.dumps({"schema": "opdplan-log/1", **record})
+                   + "\n")  # fmt: skip
+    now = _iso(parse_utc(doc["visits"][2]["start_utc"]) + now_shift)
+    out = tmp_path / "new.json"
+    capsys.readouterr()
+    code = _replan(plan, log, now, out)
+    err = capsys.readouterr().err.strip().splitlines()
+    assert code == 2 and len(err) == 1 and expected in err[0], err
+    assert not out.exists()
+
+
+def test_replan_never_overwrites_the_plan_unless_asked(tonight, tmp_path, capsys):
+    _, plan, doc = tonight
+    log = tmp_path / "night.jsonl"
+    log.write_text("")
+    assert _replan(plan, log, doc["visits"][2]["start_utc"], plan) == 2
+    assert "--overwrite" in capsys.readouterr().err
+
+
+def _iso(t_s: float) -> str:
+    from scheduler.timefmt import iso_utc
+
+    return iso_utc(float(np.round(t_s)))
