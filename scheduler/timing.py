@@ -58,6 +58,22 @@ def _from_origin(ctx: SkyContext, origin: Start, ib: int, tb: float) -> Transiti
                       np.asarray(float(k)))  # fmt: skip
 
 
+def _fit(cand: Candidate, earliest_s: float, after_s: float, transition_at):
+    """The first start of ``cand`` from ``earliest_s`` that leaves the whole transition
+    (``transition_at(start)``, measured from ``after_s``) before it: (start, transition),
+    start None if there is none."""
+    start, tr = cand.earliest_start(earliest_s), None
+    for attempt in range(6):
+        if start is None:
+            return None, None
+        tr = transition_at(start)
+        need = after_s + float(tr.total_s) + TIME_PAD_S
+        if need <= start:
+            return start, tr
+        start = cand.earliest_start(need + attempt * TIME_PAD_S)
+    return None, None
+
+
 def time_sequence(
     ctx: SkyContext, seq: list[tuple[Candidate, float]], compact: bool = True,
     origin: Start | None = None,
@@ -72,36 +88,19 @@ def time_sequence(
     for cand, hint in seq:
         ready = last_end.get(cand.target, -np.inf) + targets.min_separation_s[cand.target]
         lo = ready if compact else max(ready, hint)
+        acq = ctx.array_overheads.acquisition_s
         if prev is None and origin is not None:
-            start = cand.earliest_start(max(lo, origin.t_s + ctx.array_overheads.acquisition_s))
-            tr = None
-            for attempt in range(6):
-                if start is None:
-                    break
-                tr = _from_origin(ctx, origin, cand.target, start)
-                need = origin.t_s + float(tr.total_s) + TIME_PAD_S
-                if need <= start:
-                    break
-                start = cand.earliest_start(need + attempt * TIME_PAD_S)
-            else:
-                start = None
+            start, tr = _fit(cand, max(lo, origin.t_s + acq), origin.t_s,
+                             lambda t, b=cand.target: _from_origin(ctx, origin, b, t))  # fmt: skip
         elif prev is None:
-            first = ctx.night.start_s + ctx.array_overheads.acquisition_s
-            start, tr = cand.earliest_start(max(lo, first)), None
+            start, tr = cand.earliest_start(max(lo, ctx.night.start_s + acq)), None
         else:
             pc, pend = prev
-            start = cand.earliest_start(max(lo, pend + ctx.array_overheads.acquisition_s))
-            tr = None
-            for attempt in range(6):
-                if start is None:
-                    break
-                tr, _, _ = _exact(ctx, pc.target, pend, cand.target, start)
-                need = pend + float(tr.total_s) + TIME_PAD_S
-                if need <= start:
-                    break
-                start = cand.earliest_start(need + attempt * TIME_PAD_S)
-            else:
-                start = None
+
+            def after_prev(t, a=pc.target, e=pend, b=cand.target):
+                return _exact(ctx, a, e, b, t)[0]
+
+            start, tr = _fit(cand, max(lo, pend + acq), pend, after_prev)
         if start is None:
             continue
         out.append((cand, start, tr))

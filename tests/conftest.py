@@ -38,3 +38,23 @@ def build_beams(positions_enu_m, path_m=None, opd_min_m=None, opd_max_m=None, ra
 def make_beams():
     """Factory fixture: ``make_beams(positions, path_m=..., opd_min_m=..., ...)``."""
     return build_beams
+
+
+@pytest.fixture(scope="module")
+def demo_greedy():
+    """The fictional demo night (configuration medium) planned greedily:
+    (inputs, context, plan, plan document)."""
+    from pathlib import Path
+
+    from scheduler.commands.common import load_inputs
+    from scheduler.plan_io import plan_dict
+    from scheduler.plan_model import PlanSettings
+    from scheduler.planner import plan_night
+
+    root = Path(__file__).resolve().parent.parent
+    inputs = load_inputs(root / "catalogs" / "demo_array.toml", "medium",
+                         root / "catalogs" / "demo_targets.csv", "2027-04-18")  # fmt: skip
+    ctx = inputs.context()
+    settings = PlanSettings()
+    plan = plan_night(ctx, settings, "greedy")
+    return inputs, ctx, plan, plan_dict(ctx, inputs.array, plan, settings)

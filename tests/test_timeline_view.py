@@ -10,10 +10,6 @@ from pathlib import Path
 import pytest
 from rich.console import Console
 
-from scheduler.commands.common import load_inputs
-from scheduler.plan_io import plan_dict
-from scheduler.plan_model import PlanSettings
-from scheduler.planner import plan_night
 from scheduler.timeline_rows import timeline_view
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -22,13 +18,9 @@ WIDE_ENOUGH_FOR_CARRIAGES = 120
 
 
 @pytest.fixture(scope="module")
-def planned():
-    inputs = load_inputs(ROOT / "catalogs" / "demo_array.toml", "medium",
-                         ROOT / "catalogs" / "demo_targets.csv", "2027-04-18")  # fmt: skip
-    ctx = inputs.context()
-    settings = PlanSettings()
-    plan = plan_night(ctx, settings, "greedy")
-    return ctx, plan, plan_dict(ctx, inputs.array, plan, settings)
+def planned(demo_greedy):
+    _, ctx, plan, doc = demo_greedy
+    return ctx, plan, doc
 
 
 def render(view, width: int) -> str:

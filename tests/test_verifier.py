@@ -19,13 +19,9 @@ ROOT = Path(__file__).resolve().parent.parent
 
 
 @pytest.fixture(scope="module")
-def planned():
-    inputs = load_inputs(ROOT / "catalogs" / "demo_array.toml", "medium",
-                         ROOT / "catalogs" / "demo_targets.csv", "2027-04-18")  # fmt: skip
-    ctx = inputs.context()
-    settings = PlanSettings()
-    plan = plan_night(ctx, settings, "greedy")
-    return inputs, plan_dict(ctx, inputs.array, plan, settings)
+def planned(demo_greedy):
+    inputs, _, _, doc = demo_greedy
+    return inputs, doc
 
 
 def test_greedy_plan_passes(planned):
