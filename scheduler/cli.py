@@ -97,6 +97,17 @@ def _parser() -> argparse.ArgumentParser:
     e.add_argument("--at", required=True)
     e.add_argument("--opd", nargs="+", required=True, metavar="LINE=METRES")
 
+    ft = sub.add_parser("fit", help="will the proposals fit the semester?")
+    ft.add_argument("--semester", required=True, help="semester file (TOML)")
+    ft.add_argument("--array", required=True)
+    ft.add_argument("--targets", required=True)
+    ft.add_argument("--proposals", required=True, help="proposals (CSV)")
+    ft.add_argument("--simulate", type=int, default=0, metavar="N", help="weather realisations")
+    ft.add_argument("--seed", type=int, default=0)
+    ft.add_argument("--cluster", help="address of a Dask scheduler (cluster extra)")
+    ft.add_argument("--plot", help="write a PNG of the pressure by right ascension")
+    ft.add_argument("--json", action="store_true")
+
     sub.add_parser("demo", help="run the fictional demo scenario end to end")
     return p
 
@@ -183,6 +194,14 @@ def _replan(args, console):
     return replan_cmd.run(args, settings, args.started_s)
 
 
+def _fit(args, console):
+    from scheduler.commands import fit_cmd
+
+    if args.simulate < 0:
+        raise InputError(Problem("--simulate", "", f"{args.simulate} is negative"))
+    return fit_cmd.run(args, console)
+
+
 def _log(args, console):
     from scheduler.commands import replan_cmd
 
@@ -191,7 +210,7 @@ def _log(args, console):
 
 COMMANDS = {
     "windows": _windows, "delays": _delays, "plan": _plan, "verify": _verify,
-    "replan": _replan, "log": _log, "demo": _demo,
+    "replan": _replan, "log": _log, "fit": _fit, "demo": _demo,
 }  # fmt: skip
 
 

@@ -142,7 +142,7 @@ def _judge(ctx: SkyContext, idx, t, e, n, u) -> Evaluation:
     for k, mask in enumerate(ctx.beams.horizons):
         if mask:
             mark(alt < mask_altitude(mask, az) + m.altitude_rad, HORIZON_BASE + k)
-    tb = np.broadcast_to(t, alt.shape)
+    tb = np.asarray(t, float)  # the Sun and Moon depend on time only: broadcast later
     se, sn, su = ctx.night.sun.enu_at(ctx.night.frame, tb)
     mark(separation(e, n, u, se, sn, su) < lim.sun_separation_min_rad, SUN)
     me, mn, mu = ctx.night.moon_enu(tb)

@@ -88,13 +88,24 @@ def _wrap_lon(site: Site) -> Site:
     return Site(site.name, site.latitude_rad, float(lon), site.height_m)
 
 
-def find_night(array: ArrayModel, date: dt.date) -> Night:
-    """The night of ``date`` at the array's site; :class:`NoDarkTime` if there is none."""
+def body_tracks(array: ArrayModel, first: dt.date, last: dt.date) -> tuple[BodyTrack, BodyTrack]:
+    """Sun and Moon tracks covering every night from ``first`` to ``last``, computed in
+    one astropy call each (a semester needs thousands of nodes, not one call a night)."""
+    site = _wrap_lon(array.site)
+    a = local_noon_s(first, site) - 3600.0
+    b = local_noon_s(last, site) + DAY_S + 3600.0
+    return body_track("sun", site, a, b, 3 * 3600.0), body_track("moon", site, a, b, 1200.0)
+
+
+def find_night(array: ArrayModel, date: dt.date, tracks=None) -> Night:
+    """The night of ``date`` at the array's site; :class:`NoDarkTime` if there is none.
+    ``tracks`` = (sun, moon) from :func:`body_tracks` saves the ephemeris calls."""
     site = _wrap_lon(array.site)
     noon = local_noon_s(date, site)
     frame = earth_frame(site, noon + 0.5 * DAY_S)
-    sun = body_track("sun", site, noon - 3600.0, noon + DAY_S + 3600.0, 3 * 3600.0)
-    moon = body_track("moon", site, noon - 3600.0, noon + DAY_S + 3600.0, 1200.0)
+    if tracks is None:
+        tracks = body_tracks(array, date, date)
+    sun, moon = tracks
     limit = array.limits.sun_altitude_max_rad
 
     def dark(t):

@@ -141,3 +141,31 @@ def _palette(count: int) -> list:
 
     cmap = colormaps["tab10" if count <= 10 else "tab20"]
     return [cmap(k % cmap.N) for k in range(count)]
+
+
+def plot_pressure(pressure: list[dict], path) -> None:
+    """A PNG of requested hours and usable dark hours per hour of right ascension."""
+    import io
+
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    from scheduler.plan_io import write_atomic_bytes
+
+    ra = [b["ra_hours"] for b in pressure]
+    fig, ax = plt.subplots(figsize=(9, 4))
+    ax.bar(ra, [b["usable_dark_hours"] for b in pressure], width=0.9, color="0.8",
+           label="usable dark hours (weather-weighted)")  # fmt: skip
+    ax.bar(ra, [b["requested_hours"] for b in pressure], width=0.5, color="tab:red",
+           label="requested hours")  # fmt: skip
+    ax.set_xlabel("right ascension, h")
+    ax.set_ylabel("hours")
+    ax.set_xticks(range(0, 24, 2))
+    ax.legend()
+    ax.set_title("Pressure by right ascension (advisory)")
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=100, bbox_inches="tight")
+    plt.close(fig)
+    write_atomic_bytes(path, buf.getvalue())

@@ -61,3 +61,12 @@ def demo_file(name: str) -> Path:
 
 def print_json(data) -> None:
     print(json.dumps(data, indent=2))
+
+
+def require_matplotlib(option: str = "--plot") -> None:
+    """A clear input error, before any work, when plots are asked for without matplotlib."""
+    try:
+        import matplotlib  # noqa: F401
+    except ImportError:
+        need = "needs matplotlib: pip install '.[plots]'"
+        raise InputError(Problem(option, "", need)) from None

@@ -6,7 +6,7 @@ from dataclasses import dataclass
 
 from scheduler.array_file import load_array
 from scheduler.catalog import load_targets
-from scheduler.commands.common import Inputs
+from scheduler.commands.common import Inputs, require_matplotlib
 from scheduler.errors import InputError, Problem
 from scheduler.plan_export import write_csv, write_votable
 from scheduler.plan_io import plan_dict, read_plan, write_plan
@@ -34,12 +34,7 @@ def run(inputs: Inputs, settings: PlanSettings, solver: str, outputs: Outputs, a
         started_s: float | None = None):  # fmt: skip
     """Plan, verify, write the requested files (only once everything is computed)."""
     if outputs.plot:
-        try:
-            import matplotlib  # noqa: F401
-        except ImportError:
-            raise InputError(
-                Problem("--plot", "", "needs matplotlib: pip install '.[plots]'")
-            ) from None
+        require_matplotlib()
     ctx = inputs.context()
     plan = plan_night(ctx, settings, solver, started_s)
     doc = plan_dict(ctx, inputs.array, plan, settings)
