@@ -49,6 +49,16 @@ def objective(visits: list[Visit], ctx: SkyContext, settings: PlanSettings) -> f
     return science_value(visits, ctx) - settings.carriage_weight * idle_carriage_s(visits) / 3600.0
 
 
+def queue_inputs(ctx: SkyContext, settings: PlanSettings):
+    """What every sequencer needs for one night: windows, calibrator suitability,
+    candidate visits and grid transitions."""
+    windows = observable_windows(ctx)
+    suits = suitable_calibrators(ctx.targets, ctx.beams.longest_baseline_m(), settings)
+    cands = build_candidates(ctx.targets, windows, suits, settings)
+    grid = GeometryGrid.build(ctx)
+    return windows, suits, cands, GridTransitions(grid, ctx.beams, ctx.array_overheads, GRID_PAD_S)
+
+
 def energy_bound(cands, ctx: SkyContext, origin: Start | None) -> float:
     """An upper bound of any plan's science value by time alone: every visit needs its
     length plus at least one acquisition and settling, and the night (from the restart)
@@ -85,13 +95,9 @@ def plan_night(
     t0 = time.perf_counter()
     started = t0 if started_s is None else started_s
     targets = ctx.targets
-    windows = observable_windows(ctx)
-    suits = suitable_calibrators(targets, ctx.beams.longest_baseline_m(), settings)
-    cands = build_candidates(targets, windows, suits, settings)
+    windows, suits, cands, tr = queue_inputs(ctx, settings)
     if origin is not None:
         cands = restrict(cands, origin, targets.min_separation_s)
-    grid = GeometryGrid.build(ctx)
-    tr = GridTransitions(grid, ctx.beams, ctx.array_overheads, GRID_PAD_S)
     seq = greedy_sequence(cands, targets, suits, tr, settings, ctx.night.start_s, ctx.night.end_s,
                           origin)  # fmt: skip
     timed, br = settle_sequence(ctx, seq, targets, suits, settings, origin=origin)

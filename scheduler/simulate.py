@@ -19,18 +19,14 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from scheduler.candidates import build_candidates, suitable_calibrators
 from scheduler.catalog import Targets
 from scheduler.constraints import SkyContext
-from scheduler.geometry_grid import GeometryGrid
-from scheduler.greedy import GridTransitions, greedy_sequence
+from scheduler.greedy import greedy_sequence
 from scheduler.model import ArrayModel
 from scheduler.night import NoDarkTime, body_tracks, find_night
 from scheduler.plan_model import PlanSettings
+from scheduler.planner import queue_inputs
 from scheduler.semester import Request, Semester
-from scheduler.windows import observable_windows
-
-GRID_PAD_S = 20.0
 
 
 @dataclass(frozen=True)
@@ -61,10 +57,7 @@ def _night(scn: Scenario, date, cfg: str):
             _NIGHTS[key] = None
             return None
         ctx = SkyContext.prepare(scn.array, scn.array.beams(cfg), scn.targets, night)
-        suits = suitable_calibrators(scn.targets, ctx.beams.longest_baseline_m(), scn.settings)
-        cands = build_candidates(scn.targets, observable_windows(ctx), suits, scn.settings)
-        grid = GeometryGrid.build(ctx)
-        tr = GridTransitions(grid, ctx.beams, ctx.array_overheads, GRID_PAD_S)
+        _, suits, cands, tr = queue_inputs(ctx, scn.settings)
         _NIGHTS[key] = (night, suits, cands, tr)
     return _NIGHTS[key]
 
