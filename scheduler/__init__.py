@@ -1,11 +1,9 @@
 """opdplan: night queues, replans and semester checks for optical interferometers.
 
-The package is layered one way: the array model and catalog (data), the numerical
-core over numpy arrays (sky, delay, windows), the solver and the verifier, then the
-views and the command line at the edge.  Importing the package configures astropy to
-work offline (see :mod:`scheduler._offline`).
+The package is layered one way (DEVELOPERS.md): ``model`` (data) -> ``inputs`` (files)
+-> ``geometry`` (pure numpy) -> ``astro`` (the astropy edge) -> ``queue`` -> ``replan``
+-> ``semester`` -> ``verify`` -> ``output`` -> ``views`` -> ``cli``.  Importing
+``scheduler.astro`` configures astropy to work offline before any transform.
 """
 
-from scheduler import _offline  # noqa: F401  (must run before any astropy transform)
-
-__version__ = "0.1.0"
+__version__ = "0.2.0"

@@ -1,0 +1,118 @@
+"""What commands share: the result a command hands back to the command line, and the
+loading of an array, a configuration, a catalog and a night with every problem of every
+input reported together."""
+
+from __future__ import annotations
+
+import sys
+from dataclasses import dataclass, field
+from importlib import resources
+from pathlib import Path
+from typing import Any
+
+from scheduler.model.array import ArrayModel, Beams
+from scheduler.model.errors import Gather, InputError, Problem
+from scheduler.model.night import Night
+from scheduler.model.problem import NightProblem
+from scheduler.model.targets import Targets
+from scheduler.model.times import parse_night
+from scheduler.output.files import OutputPath
+
+
+@dataclass
+class Result:
+    """What a command produced: renderables for the console (or a JSON document), the
+    files to write (all or none, after the view is shown), warnings for standard error,
+    and the exit status.  ``caution`` adds the advisory panel under the view."""
+
+    view: list[Any] = field(default_factory=list)
+    json: Any = None
+    outputs: list[tuple[OutputPath, bytes]] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
+    exit_code: int = 0
+    caution: bool = True
+
+
+@dataclass(frozen=True)
+class Inputs:
+    array: ArrayModel
+    beams: Beams
+    targets: Targets
+    night: Night
+    warnings: tuple[str, ...] = ()
+
+    def problem(self) -> NightProblem:
+        from scheduler.astro.problem import night_problem
+
+        return night_problem(self.array, self.beams, self.targets, self.night)
+
+
+def check_config(array: ArrayModel | None, config: str, g: Gather) -> None:
+    if array is not None and config not in {c.name for c in array.configurations}:
+        try:
+            array.configuration(config)
+        except KeyError as exc:
+            g.add("--config", "", f"configuration {exc.args[0]}")
+
+
+def gather_inputs(array_path: str | Path, config: str, targets: Targets | str | Path | None,
+                  night_text: str, g: Gather) -> tuple[Any, Any, Any]:  # fmt: skip
+    """Array, catalog and night date, each loaded with its problems kept in ``g``
+    (``targets`` may be a loaded catalog, a path, or None when it failed already)."""
+    from scheduler.inputs.array_file import load_array
+    from scheduler.inputs.catalog import load_targets
+
+    array = g.take(load_array, array_path)
+    check_config(array, config, g)
+    cat = targets if isinstance(targets, Targets) or targets is None else g.take(
+        load_targets, targets)
+    date = g.take(parse_night, night_text)
+    return array, cat, date
+
+
+def finish_inputs(array: ArrayModel, config: str, targets: Targets, date: Any) -> Inputs:
+    """The night (NoDarkTime is an input error) and the coverage warning, once every
+    input is known to be good."""
+    from scheduler.astro.coverage import coverage_warning
+    from scheduler.astro.night import find_night
+
+    night = find_night(array, date)
+    warning = coverage_warning(date)
+    return Inputs(array, array.beams(config), targets, night, (warning,) if warning else ())
+
+
+def load_inputs(array_path: str | Path, config: str, targets: Targets | str | Path,
+                night_text: str) -> Inputs:  # fmt: skip
+    """Array, configuration, catalog and night; every problem raised together."""
+    g = Gather()
+    array, cat, date = gather_inputs(array_path, config, targets, night_text, g)
+    g.raise_if_any()
+    return finish_inputs(array, config, cat, date)
+
+
+def demo_file(name: str) -> Path:
+    """A file of the demo scenario: ``catalogs/`` in the current folder, else the copy
+    installed with the package, else ``catalogs/`` beside the package's source tree (an
+    editable install)."""
+    places = [Path.cwd() / "catalogs" / name]
+    try:
+        places.append(Path(str(resources.files("scheduler.demo").joinpath(name))))
+    except ModuleNotFoundError:
+        pass
+    places.append(Path(__file__).resolve().parents[3] / "catalogs" / name)
+    for place in places:
+        if place.exists():
+            return place
+    raise InputError(Problem("demo", "", f"the demo file {name} is not installed"))
+
+
+def check_matplotlib(option: str, g: Gather) -> None:
+    """A problem, before any work, when plots are asked for without matplotlib."""
+    try:
+        import matplotlib  # noqa: F401
+    except ImportError:
+        g.add(option, "", "needs matplotlib: pip install '.[plots]'")
+
+
+def warn(message: str) -> None:
+    print(f"opdplan: warning: {message}", file=sys.stderr)

@@ -1,0 +1,41 @@
+"""``opdplan replan``: the rest of the night from the current state."""
+
+from __future__ import annotations
+
+import argparse
+
+from scheduler.cli.commands.common import Result
+from scheduler.cli.commands.plan import check_time_limit, file_outputs, verified
+from scheduler.model.errors import Gather
+from scheduler.model.plan import PlanSettings
+from scheduler.output.files import check_outputs
+from scheduler.output.plan_document import replan_document
+from scheduler.replan.load import load_replan
+
+
+def run(args: argparse.Namespace, started_s: float) -> Result:
+    from scheduler.queue.planner import plan_night
+    from scheduler.views.diff_view import DiffView
+    from scheduler.views.timeline_rows import timeline_view
+
+    g = Gather()
+    check_time_limit(args.time_limit, g)
+    reads = [p for p in (args.log, args.array, args.targets) if p]
+    if not args.overwrite:
+        reads.append(args.plan)
+    outs = check_outputs({"--out": args.out}, reads, g)
+    rp = load_replan(args.plan, args.log, args.now, args.array, args.targets, g)
+    settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
+                            deterministic=args.deterministic)  # fmt: skip
+    plan = plan_night(rp.problem, settings, args.solver, started_s, rp.origin)
+    doc = replan_document(rp.problem, rp.array, plan, settings, rp.origin, rp.previous,
+                          rp.situation, args.plan)  # fmt: skip
+    plan, doc = verified(rp.problem, rp.array, plan, settings, doc)
+    result = Result(outputs=file_outputs(rp.problem, plan, doc, outs),
+                    warnings=list(rp.situation.warnings))  # fmt: skip
+    if args.json:
+        result.json = doc
+    else:
+        result.view = [timeline_view(rp.problem, plan, doc),
+                       DiffView(doc["diff"], doc["replanned_from"]["now_utc"], doc["out"])]
+    return result

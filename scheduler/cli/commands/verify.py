@@ -1,0 +1,28 @@
+"""``opdplan verify``: check any plan file against the array, the catalog and the rules."""
+
+from __future__ import annotations
+
+import argparse
+
+from scheduler.cli.commands.common import Result
+from scheduler.inputs.array_file import load_array
+from scheduler.inputs.catalog import load_targets
+from scheduler.inputs.plan_file import read_plan
+from scheduler.model.errors import Gather
+from scheduler.model.plan import PlanSettings
+
+
+def run(args: argparse.Namespace, started_s: float) -> Result:
+    """Exit status 0 when the plan holds, 1 when the verifier finds problems (listed),
+    2 when an input cannot be read (the plan file failing its schema included)."""
+    from scheduler.verify import verify_plan
+
+    g = Gather()
+    doc = g.take(read_plan, args.plan)
+    array = g.take(load_array, args.array)
+    targets = g.take(load_targets, args.targets)
+    g.raise_if_any()
+    assert doc is not None and array is not None and targets is not None
+    problems = verify_plan(doc, array, targets, PlanSettings())
+    report = {"plan": args.plan, "valid": not problems, "problems": [str(p) for p in problems]}
+    return Result(json=report, exit_code=0 if not problems else 1, caution=False)

@@ -1,0 +1,85 @@
+"""The ``opdplan`` command line.
+
+Parses arguments, runs one command, prints its view or JSON, then writes its files (all
+or none).  Bad input of any kind ends with one line per problem on standard error and
+exit status 2, never a traceback and never an output file; Ctrl-C ends with 130 and no
+new file; a plan the verifier rejects is a bug (3).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+import time
+from collections.abc import Callable
+from typing import Any
+
+from scheduler import __version__
+from scheduler.cli.parser import build_parser
+from scheduler.model.errors import InputError
+
+
+def _command(name: str) -> Callable[..., Any]:
+    """The ``run`` function of a command (imported only when used)."""
+    from scheduler.cli.commands import delays, fit, log, plan, replan, verify, windows
+
+    table: dict[str, Callable[..., Any]] = {
+        "windows": windows.run, "delays": delays.run, "plan": plan.run, "demo": plan.demo,
+        "verify": verify.run, "replan": replan.run, "log": log.run, "fit": fit.run,
+    }  # fmt: skip
+    return table[name]
+
+
+def _show(result: Any, console: Any) -> None:
+    from scheduler.cli.commands.common import warn
+    from scheduler.views.caution import Caution
+
+    for message in result.warnings:
+        warn(message)
+    if result.json is not None:
+        print(json.dumps(result.json, indent=2, allow_nan=False))
+        return
+    for part in result.view:
+        console.print(part)
+    if result.caution:
+        console.print(Caution())
+
+
+def _run(args: argparse.Namespace, started: float) -> int:
+    from rich.console import Console
+
+    from scheduler.output.files import write_all
+
+    console = Console()
+    run = _command(args.command)
+    result = run(args, started, console) if args.command == "fit" else run(args, started)
+    _show(result, console)
+    try:
+        write_all(result.outputs)
+    except OSError as exc:
+        print(f"opdplan: error: cannot write {exc.filename or ''}: {exc.strerror or exc}; "
+              "no output file was written", file=sys.stderr)  # fmt: skip
+        return 1
+    return int(result.exit_code)
+
+
+def main(argv: list[str] | None = None) -> int:
+    started = time.perf_counter()
+    try:
+        args = build_parser(__version__).parse_args(argv)
+        return _run(args, started)
+    except InputError as exc:
+        for problem in exc.problems:
+            print(f"opdplan: error: {problem}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("opdplan: interrupted; nothing was written", file=sys.stderr)
+        return 130
+    except RuntimeError as exc:  # a plan the verifier rejects is a bug: say so, write nothing
+        print(f"opdplan: internal error (please report): {exc}", file=sys.stderr)
+        return 3
+
+
+def entry() -> None:  # pragma: no cover - the console script
+    sys.exit(main())

@@ -1,0 +1,142 @@
+"""The argument parser: every option with one line of help, its default and unit, and
+one example at the end of each command's help."""
+
+from __future__ import annotations
+
+import argparse
+
+DEMO = "--array catalogs/demo_array.toml --config medium --targets catalogs/demo_targets.csv"
+
+
+class _Help(argparse.ArgumentDefaultsHelpFormatter, argparse.RawDescriptionHelpFormatter):
+    """Defaults shown after each option's help; the example kept as written."""
+
+
+def _sub(sub: argparse._SubParsersAction, name: str, text: str,
+         example: str) -> argparse.ArgumentParser:  # fmt: skip
+    return sub.add_parser(name, help=text, description=text, formatter_class=_Help,
+                          epilog=f"example:\n  opdplan {name} {example}")  # fmt: skip
+
+
+def _night_options(sp: argparse.ArgumentParser, targets: bool = True) -> None:
+    sp.add_argument("--array", required=True, help="array file (TOML)")
+    sp.add_argument("--config", required=True, help="configuration name in the array file")
+    if targets:
+        sp.add_argument("--targets", required=True, help="target catalog (CSV, ECSV, VOTable)")
+    sp.add_argument("--night", required=True,
+                    help="local date of the night's evening, YYYY-MM-DD")  # fmt: skip
+    sp.add_argument("--json", action="store_true", help="print JSON instead of the view")
+
+
+def _solver_options(sp: argparse.ArgumentParser, limit_s: float) -> None:
+    sp.add_argument("--time-limit", type=float, default=limit_s, metavar="S",
+                    help="seconds for the whole command, counted from its start")  # fmt: skip
+    sp.add_argument("--seed", type=int, default=0, help="random seed of the optimiser")
+    sp.add_argument("--deterministic", action="store_true",
+                    help="one optimiser worker under a deterministic limit: same plan "
+                    "for the same inputs and seed")  # fmt: skip
+    sp.add_argument("--solver", choices=("optimize", "greedy"), default="optimize",
+                    help="optimize: CP-SAT from the greedy night; greedy: by hand")  # fmt: skip
+
+
+def _plan_commands(sub: argparse._SubParsersAction) -> None:
+    pl = _sub(sub, "plan", "tonight's queue, verified independently",
+              f"{DEMO} --night 2027-04-18 --out plan.json")  # fmt: skip
+    _night_options(pl)
+    _solver_options(pl, 20.0)
+    pl.add_argument("--out", help="write the plan here (JSON, schema opdplan-plan/1)")
+    pl.add_argument("--csv", help="write the visits here as CSV")
+    pl.add_argument("--votable", help="write the visits here as an IVOA VOTable")
+    pl.add_argument("--plot", help="write a PNG of altitudes and carriage paths (plots extra)")
+    v = _sub(sub, "verify", "check a plan file against the array, catalog and rules",
+             "plan.json --array catalogs/demo_array.toml --targets catalogs/demo_targets.csv")
+    v.add_argument("plan", help="the plan file (JSON)")
+    v.add_argument("--array", required=True, help="array file (TOML)")
+    v.add_argument("--targets", required=True, help="target catalog")
+    rp = _sub(sub, "replan", "the rest of the night from the current state",
+              "--plan plan.json --log night.jsonl --now 2027-04-19T00:45:00Z --out new.json")
+    rp.add_argument("--plan", required=True, help="the plan made earlier (JSON)")
+    rp.add_argument("--log", required=True, help="the night log (JSON Lines)")
+    rp.add_argument("--now", required=True, help="the time to replan from, ISO 8601 UTC")
+    rp.add_argument("--out", help="write the new plan here (never over --plan, see --overwrite)")
+    rp.add_argument("--overwrite", action="store_true", help="allow --out to replace --plan")
+    rp.add_argument("--array", help="array file, if not the one the plan was made from")
+    rp.add_argument("--targets", help="catalog, if not the one the plan was made from")
+    rp.add_argument("--json", action="store_true", help="print JSON instead of the view")
+    _solver_options(rp, 3.0)
+
+
+def _log_command(sub: argparse._SubParsersAction) -> None:
+    lg = _sub(sub, "log", "append what happened to the night log",
+              "done --log night.jsonl --plan plan.json --visit Tide-05#1")  # fmt: skip
+    events = lg.add_subparsers(dest="event", required=True, metavar="EVENT")
+
+    def event(name: str, text: str, example: str) -> argparse.ArgumentParser:
+        e = events.add_parser(name, help=text, description=text, formatter_class=_Help,
+                              epilog=f"example:\n  opdplan log {name} --log night.jsonl "
+                              f"--plan plan.json {example}")  # fmt: skip
+        e.add_argument("--log", required=True, help="the night log (JSON Lines; appended)")
+        e.add_argument("--plan", required=True, help="the plan being flown (JSON)")
+        return e
+
+    for name, text in (("done", "a visit was completed"), ("aborted", "a visit was aborted")):
+        e = event(name, text, "--visit Tide-05#1 --at 2027-04-18T23:25:00Z")
+        e.add_argument("--visit", required=True, help="visit id from the plan")
+        e.add_argument("--at", help="when, ISO 8601 UTC (default: now)")
+    e = event("closed", "domes closed from one time to another",
+              "--from 2027-04-18T23:30:00Z --to 2027-04-19T01:00:00Z")  # fmt: skip
+    e.add_argument("--from", dest="from_", required=True, help="closed from, ISO 8601 UTC")
+    e.add_argument("--to", required=True, help="closed until, ISO 8601 UTC")
+    for name, text in (("out", "a station or delay line is out"), ("back", "it is back")):
+        e = event(name, text, "--station jasper")
+        which = e.add_mutually_exclusive_group(required=True)
+        which.add_argument("--station", help="station name")
+        which.add_argument("--delay-line", help="delay line name")
+        e.add_argument("--at", help="when, ISO 8601 UTC (default: now)")
+    e = event("carriages", "where the carriages are", "--at 2027-04-19T00:59:00Z --opd rail-1=60")
+    e.add_argument("--at", required=True, help="when, ISO 8601 UTC")
+    e.add_argument("--opd", nargs="+", required=True, metavar="LINE=METRES",
+                   help="optical path of each delay line, metres")  # fmt: skip
+
+
+def _other_commands(sub: argparse._SubParsersAction) -> None:
+    w = _sub(sub, "windows", "when each target is observable tonight, and why not",
+             f"{DEMO} --night 2027-04-18")  # fmt: skip
+    _night_options(w)
+    d = _sub(sub, "delays", "carriage positions through the night for one position",
+             "--array catalogs/demo_array.toml --config long --ra 14:30:00 --dec -40 "
+             "--night 2027-04-18")  # fmt: skip
+    _night_options(d, targets=False)
+    d.add_argument("--ra", help="right ascension (ICRS): degrees or hh:mm:ss.s")
+    d.add_argument("--dec", help="declination (ICRS): degrees or +dd:mm:ss")
+    d.add_argument("--target", help="target name in --targets (instead of --ra/--dec)")
+    d.add_argument("--targets", help="target catalog, with --target")
+    d.add_argument("--step-min", type=float, default=10.0, help="sample spacing, minutes")
+    ft = _sub(sub, "fit", "will the proposals fit the semester?",
+              "--semester examples/demo_semester.toml --array catalogs/demo_array.toml "
+              "--targets catalogs/demo_targets.csv --proposals examples/demo_proposals.csv")
+    ft.add_argument("--semester", required=True, help="semester file (TOML)")
+    ft.add_argument("--array", required=True, help="array file (TOML)")
+    ft.add_argument("--targets", required=True, help="target catalog")
+    ft.add_argument("--proposals", required=True, help="proposals (CSV)")
+    ft.add_argument("--simulate", type=int, default=0, metavar="N",
+                    help="weather realisations of the semester (0: none)")  # fmt: skip
+    ft.add_argument("--seed", type=int, default=0, help="random seed of the realisations")
+    ft.add_argument("--cluster", help="address of a Dask scheduler (cluster extra)")
+    ft.add_argument("--plot", help="write a PNG of the pressure by right ascension")
+    ft.add_argument("--json", action="store_true", help="print JSON instead of the view")
+    _sub(sub, "demo", "plan the fictional demo night end to end", "")
+
+
+def build_parser(version: str) -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="opdplan",
+        description="Plan nights at a long-baseline optical interferometer (advisory: every "
+        "motion follows the site's interlocks and procedures).",
+    )
+    p.add_argument("--version", action="version", version=f"opdplan {version}")
+    sub = p.add_subparsers(dest="command", required=True, metavar="COMMAND")
+    _other_commands(sub)
+    _plan_commands(sub)
+    _log_command(sub)
+    return p

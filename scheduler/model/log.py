@@ -1,0 +1,36 @@
+"""The records of the night log (JSON Lines, :mod:`scheduler.inputs.night_log`)."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from enum import StrEnum
+
+
+class Event(StrEnum):
+    DONE = "done"
+    ABORTED = "aborted"
+    CLOSED = "closed"
+    OUT = "out"
+    BACK = "back"
+    CARRIAGES = "carriages"
+
+
+@dataclass(frozen=True)
+class LogRecord:
+    """One record; ``line`` is its line number in the file.  Times are POSIX UTC
+    seconds; ``opd_m`` maps delay lines to metres of optical path."""
+
+    line: int
+    event: Event
+    at_s: float | None = None
+    visit: str | None = None
+    from_s: float | None = None
+    to_s: float | None = None
+    station: str | None = None
+    delay_line: str | None = None
+    opd_m: tuple[tuple[str, float], ...] = ()
+
+    @property
+    def when_s(self) -> float | None:
+        """When it happened: ``at_s``, or the start of a closure."""
+        return self.at_s if self.at_s is not None else self.from_s

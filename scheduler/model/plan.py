@@ -1,0 +1,172 @@
+"""The night queue's data: settings, candidate visits, scheduled visits, the plan.
+
+Frozen dataclasses; times in POSIX UTC seconds, paths in metres of optical path.
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass, field
+
+import numpy as np
+
+from scheduler.model.targets import Kind
+
+
+@dataclass(frozen=True)
+class PlanSettings:
+    """Rules of the queue (defaults documented in README.md).
+
+    ``carriage_weight`` is the objective's price of one second of carriage
+    repositioning, in priority x seconds of science: 1.0 means a second of carriage
+    travel weighs as much as one second of priority-1 science (small: a night's moves
+    add up to minutes, its science to hours).
+    """
+
+    calibrator_gap_s: float = 3600.0
+    calibrator_max_sep_rad: float = float(np.radians(10.0))
+    calibrator_max_dmag: float = 1.5
+    calibrator_min_visibility: float = 0.8
+    wavelength_m: float = 1.65e-6
+    calibrator_copies: int = 3
+    carriage_weight: float = 1.0
+    time_limit_s: float = 20.0
+    seed: int = 0
+    deterministic: bool = False
+
+
+def visit_id(name: str, kind: Kind, number: int) -> str:
+    """The id shown to people and written to files: ``Tide-05#1`` for the first visit of
+    a science target, ``Cal-02@2`` for the second copy of a calibrator.  Never parsed
+    back: visits carry their target, kind and number."""
+    return f"{name}{'#' if kind is Kind.SCIENCE else '@'}{number}"
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """A visit that may be scheduled: ``target`` indexes the catalog; ``number`` is the
+    visit number of a science target or the copy number of a calibrator; ``value`` the
+    priority x hours it earns (0 for calibrators); ``starts`` its start windows."""
+
+    id: str
+    target: int
+    kind: Kind
+    number: int
+    duration_s: float
+    value: float
+    starts: tuple[tuple[float, float], ...]
+
+    @property
+    def is_science(self) -> bool:
+        return self.kind is Kind.SCIENCE
+
+    def earliest_start(self, t_s: float) -> float | None:
+        """The first allowed start at or after ``t_s``, None if there is none."""
+        for a, b in self.starts:
+            if t_s <= b:
+                return max(a, t_s)
+        return None
+
+    def with_starts(self, starts: tuple[tuple[float, float], ...]) -> Candidate:
+        return Candidate(self.id, self.target, self.kind, self.number, self.duration_s,
+                         self.value, starts)  # fmt: skip
+
+
+@dataclass(frozen=True)
+class Visit:
+    """A scheduled visit with its exact times, the transition before it (its parts in
+    seconds, ``transition_s`` the whole gap since the previous visit ended) and the
+    optical path of each line in use at its start and end."""
+
+    id: str
+    target: int
+    kind: Kind
+    number: int
+    start_s: float
+    end_s: float
+    slew_s: float
+    carriage_s: float
+    acquisition_s: float
+    transition_s: float
+    opd_start_m: tuple[float, ...]
+    opd_end_m: tuple[float, ...]
+    alt_range_rad: tuple[float, float]
+    calibrates: tuple[str, ...] = ()
+
+    @property
+    def is_science(self) -> bool:
+        return self.kind is Kind.SCIENCE
+
+
+@dataclass(frozen=True)
+class SolverReport:
+    """What the optimiser said: statuses, seconds spent, the planning model's own
+    objective and the bounding model's proven bound (priority x hours)."""
+
+    status: str | None = None
+    solve_s: float | None = None
+    model_objective: float | None = None
+    bound: float | None = None
+    bound_status: str | None = None
+    bound_s: float | None = None
+
+
+@dataclass(frozen=True)
+class PlanSummary:
+    """The figures of a plan (README.md, *The night queue*, defines each).
+
+    Values are priority x hours; ``objective`` is the value less the carriage weight
+    times ``idle_carriage_s``; ``bound`` an upper bound of any plan's objective and
+    ``gap`` = (bound - objective) / bound; ``carriage_wait_s`` the time the array waits
+    for carriages beyond the telescope slews."""
+
+    solver: str
+    science_hours: float
+    weighted_value: float
+    objective: float
+    greedy_value: float
+    idle_carriage_s: float
+    greedy_idle_carriage_s: float
+    carriage_wait_s: float
+    seed: int
+    wall_s: float
+    bound: float | None = None
+    gap: float | None = None
+    previous_value: float | None = None
+    report: SolverReport = field(default_factory=SolverReport)
+    verified: bool = False
+
+    def as_dict(self) -> dict[str, object]:
+        return asdict(self)
+
+
+@dataclass(frozen=True)
+class Plan:
+    visits: tuple[Visit, ...]
+    unscheduled: tuple[tuple[str, str], ...]  # (target, reason)
+    summary: PlanSummary
+
+
+@dataclass(frozen=True)
+class Start:
+    """Where a queue starts when it is not the start of the night (a replan).
+
+    ``t_s``: nothing starts before it; ``target``: where the telescopes point then
+    (catalog index, None when unknown: the worst slew is assumed); ``opd_m``: carriage
+    paths then, one per line in use (None: free); ``fixed``: done calibrator visits as
+    (candidate, start_s), usable in brackets; ``done``: ids of done visits;
+    ``done_count``: per target, how many of its visits are done; ``last_end``: per
+    target, the end of its last done visit (for visit separation); ``closures``:
+    (from_s, to_s) when nothing may be observed; ``previous``: the old plan's remaining
+    visits as (id, start_s), the warm start and what stability keeps.
+    """
+
+    t_s: float
+    target: int | None = None
+    opd_m: tuple[float, ...] | None = None
+    fixed: tuple[tuple[Candidate, float], ...] = ()
+    done: frozenset[str] = frozenset()
+    done_count: tuple[tuple[int, int], ...] = ()
+    last_end: tuple[tuple[int, float], ...] = ()
+    closures: tuple[tuple[float, float], ...] = ()
+    previous: tuple[tuple[str, float], ...] = ()
+    stability_weight: float = 120.0  # priority x seconds per previously planned visit kept

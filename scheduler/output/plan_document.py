@@ -1,0 +1,136 @@
+"""The plan document, schema ``opdplan-plan/1`` (published as
+``scheduler/inputs/opdplan-plan-1.schema.json``).
+
+It carries everything the verifier needs besides the array file and the catalog: the
+night, the configuration, the stations and delay lines in use, each visit's times (to
+the millisecond, so that a stated carriage position and the printed instant agree),
+transition and carriage paths, and the rules the queue followed.  A replan adds what
+happened and what changed.
+"""
+
+from __future__ import annotations
+
+import json
+import time
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+from scheduler.inputs.plan_file import SCHEMA
+from scheduler.inputs.provenance import input_ref
+from scheduler.model.array import ArrayModel
+from scheduler.model.plan import Plan, PlanSettings, Start, Visit
+from scheduler.model.problem import NightProblem
+from scheduler.model.times import iso_utc, iso_utc_ms
+from scheduler.replan.diff import plan_diff
+from scheduler.replan.situation import Situation
+
+ADVISORY = "Advisory only: every motion follows the site's interlocks and procedures."
+
+
+def rules_of(settings: PlanSettings) -> dict[str, float | int]:
+    """The queue's rules as written in a plan (and compared by the verifier)."""
+    return {
+        "calibrator_gap_min": settings.calibrator_gap_s / 60.0,
+        "calibrator_max_sep_deg": float(np.degrees(settings.calibrator_max_sep_rad)),
+        "calibrator_max_dmag": settings.calibrator_max_dmag,
+        "calibrator_min_visibility": settings.calibrator_min_visibility,
+        "wavelength_um": settings.wavelength_m * 1e6,
+        "calibrator_copies": settings.calibrator_copies,
+        "carriage_weight": settings.carriage_weight,
+    }
+
+
+def _paths(lines: tuple[str, ...], values: tuple[float, ...]) -> dict[str, float]:
+    return {ln: round(x, 6) for ln, x in zip(lines, values, strict=True)}
+
+
+def visit_entry(problem: NightProblem, v: Visit) -> dict[str, Any]:
+    t, lines = problem.targets, problem.beams.line_names
+    return {
+        "id": v.id, "target": t.names[v.target], "kind": str(v.kind), "number": v.number,
+        "program": t.program[v.target], "priority": float(t.priority[v.target]),
+        "ra_deg": float(np.degrees(t.ra_rad[v.target])),
+        "dec_deg": float(np.degrees(t.dec_rad[v.target])),
+        "start_utc": iso_utc_ms(v.start_s), "end_utc": iso_utc_ms(v.end_s),
+        "start_s": round(v.start_s, 3), "end_s": round(v.end_s, 3),
+        "transition_s": round(v.transition_s, 3), "slew_s": round(v.slew_s, 3),
+        "carriage_s": round(v.carriage_s, 3), "acquisition_s": v.acquisition_s,
+        "altitude_deg": [round(float(np.degrees(a)), 3) for a in v.alt_range_rad],
+        "opd_start_m": _paths(lines, v.opd_start_m), "opd_end_m": _paths(lines, v.opd_end_m),
+        "calibrates": list(v.calibrates),
+    }  # fmt: skip
+
+
+def _array_part(problem: NightProblem, array: ArrayModel) -> dict[str, Any]:
+    b = problem.beams
+    return {
+        "site": {"name": array.site.name,
+                 "latitude_deg": float(np.degrees(array.site.latitude_rad)),
+                 "longitude_deg": float(np.degrees(array.site.longitude_rad)),
+                 "height_m": array.site.height_m},
+        "configuration": b.configuration,
+        "stations": [{"name": st.name, "east_m": st.east_m, "north_m": st.north_m,
+                      "up_m": st.up_m, "internal_path_m": st.internal_path_m}
+                     for st in (array.station(n) for n in b.station_names)],
+        "delay_lines": [{"name": ln, "station": b.station_names[i],
+                         "opd_min_m": float(b.opd_min_m[i]), "opd_max_m": float(b.opd_max_m[i]),
+                         "max_rate_m_s": float(b.rate_m_s[i]),
+                         "fixed_offset_m": float(b.fixed_offset_m[i])}
+                        for i, ln in enumerate(b.line_names)],
+    }  # fmt: skip
+
+
+def plan_document(problem: NightProblem, array: ArrayModel, plan: Plan,
+                  settings: PlanSettings) -> dict[str, Any]:  # fmt: skip
+    """The ``opdplan-plan/1`` document of ``plan``."""
+    night = problem.night
+    return {
+        "schema": SCHEMA, "created_utc": iso_utc(time.time()), "advisory": ADVISORY,
+        "night": {"date": night.date.isoformat(), "start_utc": iso_utc_ms(night.start_s),
+                  "end_utc": iso_utc_ms(night.end_s)},
+        **_array_part(problem, array),
+        "visits": [visit_entry(problem, v) for v in plan.visits],
+        "unscheduled": [{"target": n, "reason": r} for n, r in plan.unscheduled],
+        "rules": rules_of(settings),
+        "inputs": {"array": input_ref(array.source), "targets": input_ref(problem.targets.source)},
+        "summary": plan.summary.as_dict(),
+    }  # fmt: skip
+
+
+def replan_document(problem: NightProblem, array: ArrayModel, plan: Plan, settings: PlanSettings,
+                    origin: Start, old: dict[str, Any], sit: Situation,
+                    plan_path: str) -> dict[str, Any]:  # fmt: skip
+    """The replan's document: the plan schema plus ``replanned_from``, ``done`` (with
+    their logged times), ``out``, ``closures``, ``start_state`` and ``diff``."""
+    doc = plan_document(problem, array, plan, settings)
+    known = {v["id"]: v for v in old["visits"] + old.get("done", [])}
+    done = []
+    for vid, at in sorted(sit.done.items(), key=lambda kv: kv[1] or 0.0):
+        v = dict(known[vid])
+        if at is not None:
+            length = v["end_s"] - v["start_s"]
+            v.update(end_s=round(at, 3), start_s=round(at - length, 3), end_utc=iso_utc_ms(at),
+                     start_utc=iso_utc_ms(at - length))  # fmt: skip
+        done.append(v)
+    lines = problem.beams.line_names
+    opd = None
+    if origin.opd_m is not None:
+        opd = {ln: (None if np.isnan(x) else x) for ln, x in zip(lines, origin.opd_m, strict=True)}
+    doc.update({
+        "replanned_from": {"plan": str(Path(plan_path).resolve()),
+                           "now_utc": iso_utc_ms(sit.now_s)},
+        "done": done, "out": sorted(sit.out),
+        "closures": [[iso_utc_ms(a), iso_utc_ms(b)] for a, b in sit.closures],
+        "start_state": {"utc": iso_utc_ms(origin.t_s),
+                        "pointing": (problem.targets.names[origin.target]
+                                     if origin.target is not None else None),
+                        "opd_m": opd},
+        "diff": plan_diff(old["visits"], doc["visits"], set(sit.done)),
+    })  # fmt: skip
+    return doc
+
+
+def document_bytes(doc: dict[str, Any]) -> bytes:
+    return (json.dumps(doc, indent=2, allow_nan=False) + "\n").encode("utf-8")

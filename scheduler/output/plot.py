@@ -1,0 +1,166 @@
+"""A picture of a planned night: altitudes above, carriage positions below.
+
+Both panels share a UTC axis over the dark interval.  The upper one shows each
+scheduled target's altitude through the night (thin) and its visits (thick); the lower
+one the optical path each delay line adds during every visit (solid, from the visit's
+start to its end) and the moves between visits (dashed), over the band each line can
+reach.  matplotlib is optional (``pip install '.[plots]'``) and only imported here.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import io
+
+import numpy as np
+
+from scheduler.geometry.constraints import evaluate_grid
+from scheduler.model.errors import InputError, Problem
+from scheduler.model.plan import Plan
+from scheduler.model.problem import NightProblem
+
+GRID_STEP_S = 300.0  # altitude curves sampled every five minutes
+VISIT_POINTS = 24  # samples of a visit's thick altitude stroke
+FIG_SIZE_IN = (11.0, 7.5)
+DPI = 110
+CALIBRATOR_GREY = "0.45"
+
+
+def plan_png(ctx: NightProblem, plan: Plan) -> bytes:
+    """A PNG of ``plan``: altitudes above, carriage paths below."""
+    try:
+        from matplotlib import dates as mdates
+        from matplotlib.backends.backend_agg import FigureCanvasAgg
+        from matplotlib.figure import Figure
+    except ImportError:
+        raise InputError(
+            Problem("--plot", "", "needs matplotlib: pip install '.[plots]'")
+        ) from None
+
+    night, beams = ctx.night, ctx.beams
+    t = night.grid(GRID_STEP_S)
+    alt_deg = np.degrees(evaluate_grid(ctx, t).alt_rad)  # (N, T)
+
+    def when(t_s):
+        return mdates.date2num([dt.datetime.fromtimestamp(float(x), tz=dt.UTC) for x in
+                                np.atleast_1d(t_s)])  # fmt: skip
+
+    fig = Figure(figsize=FIG_SIZE_IN, dpi=DPI)
+    FigureCanvasAgg(fig)
+    top, bottom = fig.subplots(2, 1, sharex=True, gridspec_kw={"height_ratios": [1, 1.15]})
+    _altitudes(top, ctx, plan, t, alt_deg, when)
+    _carriages(bottom, ctx, plan, when)
+
+    bottom.set_xlim(when(night.start_s)[0], when(night.end_s)[0])
+    bottom.xaxis.set_major_locator(mdates.HourLocator(tz=dt.UTC))
+    bottom.xaxis.set_major_formatter(mdates.DateFormatter("%H:%M", tz=dt.UTC))
+    bottom.set_xlabel("UTC")
+    fig.suptitle(f"Night of {night.date} - configuration {beams.configuration}", fontsize=12)
+    fig.text(0.99, 0.005, "advisory: every motion follows the site's own procedures",
+             ha="right", va="bottom", fontsize=7, color="0.45", style="italic")  # fmt: skip
+    fig.tight_layout(rect=(0, 0.02, 1, 0.97))
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png")
+    return buf.getvalue()
+
+
+def _altitudes(ax, ctx: NightProblem, plan: Plan, t, alt_deg, when) -> None:
+    """Thin altitude curve per scheduled target, thick over its visits; science in
+    colour, calibrators grey."""
+    targets, lim = ctx.targets, ctx.limits
+    order = list(dict.fromkeys(v.target for v in plan.visits))
+    science = [i for i in order if targets.is_science[i]]
+    colours = dict(zip(science, _palette(len(science)), strict=True))
+    x = when(t)
+    for i in order:
+        colour = colours.get(i, CALIBRATOR_GREY)
+        is_science = i in colours
+        ax.plot(x, alt_deg[i], color=colour, lw=0.7, alpha=0.6 if is_science else 0.5,
+                ls="-" if is_science else ":")  # fmt: skip
+        visits = [v for v in plan.visits if v.target == i]
+        for v in visits:
+            tv = np.linspace(v.start_s, v.end_s, VISIT_POINTS)
+            ax.plot(when(tv), np.interp(tv, t, alt_deg[i]), color=colour,
+                    lw=4.0 if is_science else 2.5, solid_capstyle="butt")  # fmt: skip
+        if is_science:
+            mid = 0.5 * (visits[0].start_s + visits[0].end_s)
+            ax.annotate(targets.names[i], (when(mid)[0], np.interp(mid, t, alt_deg[i])),
+                        xytext=(0, 6), textcoords="offset points", ha="center",
+                        fontsize=7, color=colour)  # fmt: skip
+    for limit in (lim.min_altitude_rad, lim.max_altitude_rad):
+        deg = float(np.degrees(limit))
+        if 0.0 < deg < 90.0:
+            ax.axhline(deg, color="0.3", lw=0.8, ls="--")
+    ax.set_ylim(0.0, 90.0)
+    ax.set_ylabel("altitude, deg")
+    ax.set_title("science targets thin over the night, thick while observed; calibrators "
+                 "grey; dashed: altitude limits", fontsize=9, loc="left")  # fmt: skip
+    ax.grid(alpha=0.25)
+
+
+def _carriages(ax, ctx: NightProblem, plan: Plan, when) -> None:
+    """Each line's optical path during the visits (solid) and between them (dashed),
+    over the band of its travel range."""
+    beams = ctx.beams
+    colours = _palette(len(beams.line_names))
+    ranges: dict[tuple[float, float], list[int]] = {}
+    for k in range(len(beams.line_names)):
+        ranges.setdefault((float(beams.opd_min_m[k]), float(beams.opd_max_m[k])), []).append(k)
+    for (lo, hi), members in ranges.items():
+        tint = colours[members[0]] if len(members) == 1 else CALIBRATOR_GREY
+        ax.axhspan(lo, hi, color=tint, alpha=0.06, lw=0)
+        for edge in (lo, hi):
+            ax.axhline(edge, color=tint, lw=0.9, ls=(0, (1, 2)))
+    for k, (line, colour) in enumerate(zip(beams.line_names, colours, strict=True)):
+        for j, v in enumerate(plan.visits):
+            ax.plot(when([v.start_s, v.end_s]), [v.opd_start_m[k], v.opd_end_m[k]],
+                    color=colour, lw=2.0, label=line if j == 0 else None)  # fmt: skip
+            if j + 1 < len(plan.visits):
+                nxt = plan.visits[j + 1]
+                ax.plot(when([v.end_s, nxt.start_s]), [v.opd_end_m[k], nxt.opd_start_m[k]],
+                        color=colour, lw=0.8, ls="--")  # fmt: skip
+    for v in plan.visits:
+        if ctx.targets.is_science[v.target]:
+            ax.axvspan(when(v.start_s)[0], when(v.end_s)[0], color="0.5", alpha=0.08, lw=0)
+    low, high = float(np.min(beams.opd_min_m)), float(np.max(beams.opd_max_m))
+    pad = 0.04 * (high - low)
+    ax.set_ylim(low - pad, high + pad)
+    ax.set_ylabel("optical path, m")
+    ax.set_title("delay lines: optical path during each visit (solid) and moves between "
+                 "visits (dashed); dotted: range limits; shaded: science", fontsize=9,
+                 loc="left")  # fmt: skip
+    if len(beams.line_names):
+        ax.legend(loc="upper left", bbox_to_anchor=(1.0, 1.0), fontsize=8, frameon=False)
+    ax.grid(alpha=0.25)
+
+
+def _palette(count: int) -> list:
+    """``count`` distinct colours, evenly spread over a qualitative ring."""
+    from matplotlib import colormaps
+
+    cmap = colormaps["tab10" if count <= 10 else "tab20"]
+    return [cmap(k % cmap.N) for k in range(count)]
+
+
+def pressure_png(pressure: list[dict]) -> bytes:
+    """A PNG of requested hours and usable dark hours per hour of right ascension."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    ra = [b["ra_hours"] for b in pressure]
+    fig, ax = plt.subplots(figsize=(9, 4))
+    ax.bar(ra, [b["usable_dark_hours"] for b in pressure], width=0.9, color="0.8",
+           label="usable dark hours (weather-weighted)")  # fmt: skip
+    ax.bar(ra, [b["requested_hours"] for b in pressure], width=0.5, color="tab:red",
+           label="requested hours")  # fmt: skip
+    ax.set_xlabel("right ascension, h")
+    ax.set_ylabel("hours")
+    ax.set_xticks(range(0, 24, 2))
+    ax.legend()
+    ax.set_title("Pressure by right ascension (advisory)")
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=100, bbox_inches="tight")
+    plt.close(fig)
+    return buf.getvalue()

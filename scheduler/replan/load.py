@@ -1,0 +1,88 @@
+"""Everything a replan reads, checked together: the previous plan, the array and catalog
+it was made from (or the ones given), ``--now``, and the night log."""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from scheduler.astro.night import find_night
+from scheduler.astro.problem import night_problem
+from scheduler.inputs.array_file import load_array
+from scheduler.inputs.catalog import load_targets
+from scheduler.inputs.night_log import LogTerms, read_log
+from scheduler.inputs.plan_file import read_plan
+from scheduler.inputs.provenance import file_sha256
+from scheduler.model.array import ArrayModel
+from scheduler.model.errors import Gather, InputError, Problem
+from scheduler.model.plan import Start
+from scheduler.model.problem import NightProblem
+from scheduler.model.times import iso_utc, parse_night, utc_option
+from scheduler.replan.situation import Situation, origin_of, read_situation
+
+
+@dataclass(frozen=True)
+class Replan:
+    """A replan's inputs: the array, the night problem of what is left (lines out
+    removed), the restart state, the previous plan document and the situation."""
+
+    array: ArrayModel
+    problem: NightProblem
+    origin: Start
+    previous: dict[str, Any]
+    situation: Situation
+
+
+def _source(doc: dict[str, Any], plan_path: str, key: str, given: str | None,
+            g: Gather) -> str | None:  # fmt: skip
+    """The file to read for ``key`` (array or targets): the one given, else the plan's."""
+    if given is not None:
+        return given
+    ref = doc.get("inputs", {}).get(key)
+    if not ref or not Path(ref["path"]).exists():
+        g.add(plan_path, f"inputs.{key}", f"the {key} file is not known or not found; "
+              f"pass --{key}")  # fmt: skip
+        return None
+    if ref.get("sha256") and file_sha256(ref["path"]) != ref["sha256"]:
+        g.add(plan_path, f"inputs.{key}", f"{ref['path']} changed since the plan was made; "
+              f"pass --{key} to use it anyway")  # fmt: skip
+        return None
+    return str(ref["path"])
+
+
+def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | None = None,
+                targets_path: str | None = None, g: Gather | None = None) -> Replan:  # fmt: skip
+    """Read and check every input of a replan; InputError with all problems at once
+    (together with those already in ``g``)."""
+    g = g if g is not None else Gather()
+    doc = g.take(read_plan, plan_path)
+    now_s = g.take(utc_option, now_text, "--now")
+    array = targets = terms = None
+    if doc is not None:
+        load: Callable[[str], Any]
+        for key, given, load in (("array", array_path, load_array),
+                                 ("targets", targets_path, load_targets)):  # fmt: skip
+            src = _source(doc, plan_path, key, given, g)
+            got = g.take(load, src) if src else None
+            array, targets = (got, targets) if key == "array" else (array, got)
+        terms = LogTerms.of_plan(doc, plan_path)
+        if array is not None and doc["configuration"] not in {c.name for c in array.configurations}:
+            g.add(plan_path, "configuration", f"{doc['configuration']!r} is not a configuration "
+                  f"of {array.source}")  # fmt: skip
+    log = g.take(read_log, log_path, terms)
+    g.raise_if_any()
+    assert doc is not None and array is not None and targets is not None and log is not None
+    assert now_s is not None
+    night = find_night(array, parse_night(doc["night"]["date"], plan_path))
+    if not night.start_s <= now_s <= night.end_s:
+        span = f"{iso_utc(night.start_s)} to {iso_utc(night.end_s)}"
+        raise InputError(Problem("--now", "", f"{now_text} is outside the night {span}"))
+    sit = read_situation(log[0], log[1], doc, log_path, now_s)
+    beams = array.beams(doc["configuration"], sit.out)
+    if len(beams) < 2:
+        raise InputError(Problem(log_path, "", f"with {sorted(sit.out)} out, fewer than two "
+                                 "delay lines are left: no baseline to observe with"))  # fmt: skip
+    problem = night_problem(array, beams, targets, night)
+    return Replan(array, problem, origin_of(problem, doc, sit), doc, sit)

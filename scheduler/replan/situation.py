@@ -1,0 +1,124 @@
+"""What the night log says at ``now``, and the restart state it gives.
+
+Reads the records up to ``now``: done and aborted visits, closures, stations and delay
+lines out (and back), logged carriage paths.  Records later than ``now`` are reported
+and not used (a closure logged ahead of time is used: it constrains the future), as are
+planned visits that should have ended before ``now`` with no record of being done.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Any
+
+import numpy as np
+
+from scheduler.model.log import Event, LogRecord
+from scheduler.model.plan import Candidate, Start
+from scheduler.model.problem import NightProblem
+from scheduler.model.targets import Kind
+from scheduler.model.times import iso_utc
+
+
+@dataclass(frozen=True)
+class Situation:
+    """What the log says at ``now_s``: done visits (id -> time logged done), closures,
+    what is out, the last logged carriage paths (at, {line: m}), where the telescopes
+    point (target of the last visit done or aborted), and warnings for the operator."""
+
+    now_s: float
+    done: dict[str, float | None]
+    closures: tuple[tuple[float, float], ...]
+    out: frozenset[str]
+    carriages: tuple[float, dict[str, float]] | None
+    pointing: str | None
+    warnings: tuple[str, ...]
+
+
+def read_situation(records: list[LogRecord], warnings: list[str], doc: dict[str, Any],
+                   log_path: str, now_s: float) -> Situation:  # fmt: skip
+    """The :class:`Situation` at ``now_s`` from the log's records (already checked
+    against the plan ``doc``)."""
+    known = {v["id"]: v for v in doc["visits"] + doc.get("done", [])}
+    done: dict[str, float | None] = {}
+    out: set[str] = set()
+    carriages, pointing, last_at = None, None, -np.inf
+    notes = list(warnings)
+    for r in sorted(records, key=lambda r: (r.when_s or 0.0, r.line)):
+        at = r.when_s
+        if at is None:
+            continue
+        if at > now_s:
+            if r.event is not Event.CLOSED:
+                notes.append(f"{log_path}: line {r.line}: {r.event} at {iso_utc(at)} is later "
+                             f"than --now {iso_utc(now_s)}; not used")  # fmt: skip
+            continue
+        if r.event is Event.DONE and r.visit:
+            done[r.visit] = r.at_s
+        elif r.event is Event.ABORTED and r.visit:
+            done.pop(r.visit, None)
+        elif r.event is Event.OUT:
+            out.add(str(r.station or r.delay_line))
+        elif r.event is Event.BACK:
+            out.discard(str(r.station or r.delay_line))
+        elif r.event is Event.CARRIAGES and r.at_s is not None:
+            carriages = (r.at_s, dict(r.opd_m))
+        if r.event in (Event.DONE, Event.ABORTED) and r.visit and at >= last_at:
+            pointing, last_at = known[r.visit]["target"], at
+    closures = tuple(sorted((float(r.from_s), float(r.to_s)) for r in records
+                            if r.event is Event.CLOSED and r.from_s is not None
+                            and r.to_s is not None))  # fmt: skip
+    aborted = {r.visit for r in records if r.event is Event.ABORTED}
+    for v in doc["visits"]:
+        if v["end_s"] <= now_s and v["id"] not in done and v["id"] not in aborted:
+            notes.append(f"{v['id']} was planned to end at {v['end_utc']}, before --now, but "
+                         "the log does not say it was done; it may be planned again")  # fmt: skip
+    return Situation(now_s, done, closures, frozenset(out), carriages, pointing, tuple(notes))
+
+
+def _done_visits(problem: NightProblem, known: dict[str, dict[str, Any]], sit: Situation):
+    """Done calibrators (for brackets), per-target counts and last ends, and the last
+    done visit as (end, its plan entry)."""
+    t = problem.targets
+    fixed: list[tuple[Candidate, float]] = []
+    last_end: dict[int, float] = {}
+    count: dict[int, int] = {}
+    last_done: tuple[float, dict[str, Any]] | None = None
+    for vid, at in sit.done.items():
+        v = known[vid]
+        i = t.index(v["target"])
+        end = at if at is not None else float(v["end_s"])
+        start = end - (float(v["end_s"]) - float(v["start_s"]))
+        if v["kind"] == Kind.CALIBRATOR:
+            fixed.append((Candidate(vid, i, Kind.CALIBRATOR, int(v["number"]), end - start, 0.0,
+                                    ()), start))  # fmt: skip
+        else:
+            last_end[i] = max(last_end.get(i, -np.inf), end)
+            count[i] = count.get(i, 0) + 1
+        if last_done is None or end > last_done[0]:
+            last_done = (end, v)
+    return fixed, last_end, count, last_done
+
+
+def origin_of(problem: NightProblem, doc: dict[str, Any], sit: Situation) -> Start:
+    """The restart state: from ``now`` (or the end of a closure going on then), with the
+    pointing and carriage paths last known; a line with no known path is NaN."""
+    known = {v["id"]: v for v in doc["visits"] + doc.get("done", [])}
+    t_from = sit.now_s
+    for a, b in sit.closures:  # a closure going on now: wait for its end
+        if a <= t_from < b:
+            t_from = b
+    fixed, last_end, count, last_done = _done_visits(problem, known, sit)
+    opd: dict[str, float] | None = None
+    if sit.carriages and (last_done is None or sit.carriages[0] >= last_done[0]):
+        opd = sit.carriages[1]
+    elif last_done is not None:
+        opd = last_done[1]["opd_end_m"]
+    lines = problem.beams.line_names
+    opd_m = tuple(float(opd.get(ln, np.nan)) for ln in lines) if opd else None
+    t = problem.targets
+    pointing = t.index(sit.pointing) if sit.pointing in t.names else None
+    previous = tuple((v["id"], float(v["start_s"])) for v in doc["visits"]
+                     if v["id"] not in sit.done)  # fmt: skip
+    return Start(t_from, pointing, opd_m, tuple(fixed), frozenset(sit.done),
+                 tuple(count.items()), tuple(last_end.items()), sit.closures, previous)  # fmt: skip

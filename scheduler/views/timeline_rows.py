@@ -1,0 +1,106 @@
+"""The inputs of the night timeline view, built from a finished plan.
+
+Everything the view shows is prepared here: the strip's spans (visits, the transition
+before each visit, idle time), the hour marks with their sidereal times, one row per
+visit, the summary items and the unscheduled science targets grouped by reason.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from typing import Any
+
+from scheduler.model.plan import Plan, PlanSummary
+from scheduler.model.problem import NightProblem
+from scheduler.model.times import hhmm, hours_label
+from scheduler.views.timeline_view import NightStrip, TimelineView, VisitRow
+
+
+def timeline_view(ctx: NightProblem, plan: Plan, doc: dict[str, Any]) -> TimelineView:
+    """The timeline of ``plan``; ``doc`` is its plan document (:func:`plan_io.plan_dict`),
+    which supplies the carriage positions and the summary."""
+    night, t = ctx.night, ctx.targets
+    lines = tuple(ctx.beams.line_names)
+    numbers = {v.id: k + 1 for k, v in enumerate(plan.visits)}
+    rows = []
+    for k, (v, d) in enumerate(zip(plan.visits, doc["visits"], strict=True)):
+        rows.append(VisitRow(
+            number=k + 1, utc_start=hhmm(v.start_s), utc_end=hhmm(v.end_s),
+            lst_start=hours_label(float(night.lst_rad(v.start_s))), target=t.names[v.target],
+            kind=t.kind(v.target), program=t.program[v.target],
+            alt_deg=(float(d["altitude_deg"][0]), float(d["altitude_deg"][1])),
+            slew_s=v.slew_s, carriage_s=v.carriage_s, acquisition_s=v.acquisition_s,
+            gap_s=v.transition_s, opd_start_m=tuple(float(d["opd_start_m"][ln]) for ln in lines),
+            serves=tuple(numbers[c] for c in v.calibrates if c in numbers),
+        ))  # fmt: skip
+    strip = NightStrip(night.start_s, night.end_s, _hour_marks(ctx), _spans(ctx, plan))
+    title = (
+        f"Night of {night.date} - configuration {ctx.beams.configuration} - dark "
+        f"{hhmm(night.start_s)} to {hhmm(night.end_s)} UTC ({night.duration_s / 3600.0:.1f} h)"
+    )
+    return TimelineView(title, strip, rows, lines, _summary(plan.summary, plan),
+                        _grouped(plan.unscheduled))  # fmt: skip
+
+
+def _hour_marks(ctx: NightProblem) -> tuple[tuple[float, str, str], ...]:
+    """(time, UTC label, LST label) at every full UTC hour inside the night."""
+    night = ctx.night
+    first = np.ceil(night.start_s / 3600.0) * 3600.0
+    hours = np.arange(first, night.end_s, 3600.0)
+    return tuple((float(h), hhmm(h), hours_label(float(night.lst_rad(h)))) for h in hours)
+
+
+def _spans(ctx: NightProblem, plan: Plan) -> tuple[tuple[float, float, str], ...]:
+    """The night cut into (start, end, kind) spans: ``science`` and ``calibrator``
+    visits, the ``transition`` before each visit (the longer of slew and carriage move,
+    then acquisition, right after the previous visit; for the first visit its
+    acquisition) and ``idle`` time in between."""
+    t = ctx.targets
+    out = []
+    cursor = ctx.night.start_s
+    for k, v in enumerate(plan.visits):
+        need = max(v.slew_s, v.carriage_s) + v.acquisition_s
+        if k == 0:
+            t0, t1 = max(cursor, v.start_s - need), v.start_s
+            if t0 > cursor:
+                out.append((cursor, t0, "idle"))
+        else:
+            t0, t1 = cursor, min(v.start_s, cursor + need)
+        out.append((t0, t1, "transition"))
+        if t1 < v.start_s:
+            out.append((t1, v.start_s, "idle"))
+        out.append((v.start_s, v.end_s, str(v.kind)))
+        cursor = v.end_s
+    if cursor < ctx.night.end_s:
+        out.append((cursor, ctx.night.end_s, "idle"))
+    return tuple((float(a), float(b), kind) for a, b, kind in out if b > a)
+
+
+def _summary(s: PlanSummary, plan: Plan) -> tuple[tuple[str, str], ...]:
+    """(label, value) pairs, in reading order."""
+    science = sum(1 for v in plan.visits if v.is_science)
+    items = [
+        ("visits", f"{len(plan.visits)} ({science} science)"),
+        ("science", f"{s.science_hours:.2f} h"),
+        ("value", f"{s.weighted_value:.2f}"),
+        ("greedy", f"{s.greedy_value:.2f}"),
+    ]
+    if s.bound is not None:
+        items.append(("bound", f"{s.bound:.2f}"))
+        if s.gap is not None:
+            items.append(("gap", f"{s.gap:.1%}"))
+    items.append(("idle carriage", f"{s.idle_carriage_s:.0f} s"))
+    items.append(("carriage wait", f"{s.carriage_wait_s:.0f} s"))
+    items.append(("solver", s.solver))
+    if s.verified:
+        items.append(("verified", "yes"))
+    return tuple(items)
+
+
+def _grouped(unscheduled: tuple[tuple[str, str], ...]) -> tuple[tuple[str, tuple[str, ...]], ...]:
+    """(reason, targets) in order of first appearance."""
+    groups: dict[str, list[str]] = {}
+    for name, why in unscheduled:
+        groups.setdefault(why, []).append(name)
+    return tuple((why, tuple(names)) for why, names in groups.items())
