@@ -9,16 +9,15 @@ import datetime as dt
 import numpy as np
 import pandas as pd
 
-import scheduler  # noqa: F401  (offline astropy first)
-from scheduler.array_file import parse_array
-from scheduler.candidates import build_candidates, suitable_calibrators
-from scheduler.catalog import parse_targets
-from scheduler.constraints import SkyContext
-from scheduler.night import find_night
-from scheduler.plan_io import plan_dict
-from scheduler.plan_model import PlanSettings
-from scheduler.verifier import verify_plan
-from scheduler.windows import observable_windows
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.astro.night import find_night
+from scheduler.astro.problem import night_problem
+from scheduler.inputs.array_file import parse_array
+from scheduler.inputs.catalog import parse_targets
+from scheduler.model.plan import PlanSettings
+from scheduler.output.plan_document import plan_document
+from scheduler.queue.prepare import QueueInputs, prepare_queue
+from scheduler.verify import verify_plan
 
 NIGHT_DATE = dt.date(2027, 4, 18)
 SITE = {"name": "invented test site", "latitude_deg": -26.1, "longitude_deg": -66.2,
@@ -59,26 +58,23 @@ def targets_frame(rows: list[dict]) -> pd.DataFrame:
 
 
 class Case:
-    """One invented night: array, catalog, context, and the candidates ``plan_night``
-    would build from them."""
+    """One invented night: array, catalog, night problem, and the queue inputs
+    ``plan_night`` would build from them."""
 
     def __init__(self, array_doc: dict, rows: list[dict]):
         self.array = parse_array(array_doc, "<test array>")
         self.targets = parse_targets(targets_frame(rows), "<test targets>")
         night = find_night(self.array, NIGHT_DATE)
-        self.ctx = SkyContext.prepare(self.array, self.array.beams(CONFIG), self.targets, night)
+        self.problem = night_problem(self.array, self.array.beams(CONFIG), self.targets, night)
 
-    def candidates(self, settings: PlanSettings):
-        """(windows, suits, candidates) exactly as ``plan_night`` builds them."""
-        ctx = self.ctx
-        windows = observable_windows(ctx)
-        suits = suitable_calibrators(ctx.targets, ctx.beams.longest_baseline_m(), settings)
-        return windows, suits, build_candidates(ctx.targets, windows, suits, settings)
+    def queue(self, settings: PlanSettings) -> QueueInputs:
+        """The queue inputs exactly as ``plan_night`` builds them."""
+        return prepare_queue(self.problem, settings)
 
     def problems(self, plan, settings: PlanSettings) -> list[str]:
         """What the independent verifier finds wrong with ``plan`` (empty: valid)."""
-        return verify_plan(plan_dict(self.ctx, self.array, plan, settings), self.array,
-                           self.targets)  # fmt: skip
+        doc = plan_document(self.problem, self.array, plan, settings)
+        return [str(v) for v in verify_plan(doc, self.array, self.targets, settings)]
 
 
 def small_instance(seed: int):

@@ -1,14 +1,14 @@
 """Shared helpers for the numerical-core tests.
 
-``import scheduler`` comes first: it configures astropy to stay offline (no IERS
+``import scheduler.astro`` comes first: it configures astropy to stay offline (no IERS
 downloads) before any test module builds a Time or a transform.
 """
 
 import numpy as np
 import pytest
 
-import scheduler  # noqa: F401  (offline astropy configuration; must come first)
-from scheduler.model import Beams
+import scheduler.astro  # noqa: F401  (offline astropy configuration; must come first)
+from scheduler.model.array import Beams
 
 
 def build_beams(positions_enu_m, path_m=None, opd_min_m=None, opd_max_m=None, rate_m_s=None):
@@ -46,15 +46,15 @@ def demo_greedy():
     (inputs, context, plan, plan document)."""
     from pathlib import Path
 
-    from scheduler.commands.common import load_inputs
-    from scheduler.plan_io import plan_dict
-    from scheduler.plan_model import PlanSettings
-    from scheduler.planner import plan_night
+    from scheduler.cli.commands.common import load_inputs
+    from scheduler.model.plan import PlanSettings
+    from scheduler.output.plan_document import plan_document
+    from scheduler.queue.planner import plan_night
 
     root = Path(__file__).resolve().parent.parent
     inputs = load_inputs(root / "catalogs" / "demo_array.toml", "medium",
                          root / "catalogs" / "demo_targets.csv", "2027-04-18")  # fmt: skip
-    ctx = inputs.context()
+    problem = inputs.problem()
     settings = PlanSettings()
-    plan = plan_night(ctx, settings, "greedy")
-    return inputs, ctx, plan, plan_dict(ctx, inputs.array, plan, settings)
+    plan = plan_night(problem, settings, "greedy")
+    return inputs, problem, plan, plan_document(problem, inputs.array, plan, settings)

@@ -8,8 +8,8 @@ import math
 
 import pytest
 
-from scheduler.array_file import load_array, parse_array
-from scheduler.errors import InputError
+from scheduler.inputs.array_file import load_array, parse_array
+from scheduler.model.errors import InputError
 
 GOOD = {
     "site": {"name": "test site", "latitude_deg": -20.0, "longitude_deg": 30.0, "height_m": 100.0},

@@ -7,8 +7,9 @@ import math
 import pandas as pd
 import pytest
 
-from scheduler.catalog import load_targets, parse_angle, parse_targets, parse_utc
-from scheduler.errors import InputError
+from scheduler.inputs.catalog import load_targets, parse_angle, parse_targets
+from scheduler.model.errors import InputError
+from scheduler.model.times import parse_utc
 
 ANGLE_TOL_DEG = 1e-9
 

@@ -8,7 +8,7 @@ from pathlib import Path
 
 import pytest
 
-from scheduler.cli import main
+from scheduler.cli.main import main
 
 ROOT = Path(__file__).resolve().parent.parent
 ARRAY = str(ROOT / "catalogs" / "demo_array.toml")

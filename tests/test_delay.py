@@ -11,9 +11,8 @@ from conftest import build_beams
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-import scheduler  # noqa: F401  (offline astropy first)
-from scheduler.array_file import parse_array
-from scheduler.delay import (
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.geometry.delay import (
     line_paths,
     max_tracking_rate_m_s,
     offset_span,
@@ -21,7 +20,8 @@ from scheduler.delay import (
     projected_path,
     uvw,
 )
-from scheduler.sky import OMEGA_EARTH_RAD_S, enu_from_hadec
+from scheduler.geometry.sky import OMEGA_EARTH_RAD_S, enu_from_hadec
+from scheduler.inputs.array_file import parse_array
 
 # --- tolerances --------------------------------------------------------------------
 UVW_TABLE_TOL_M = 1e-4  # TMS table values are given to 4 decimals
@@ -69,7 +69,7 @@ def test_w_is_baseline_dot_direction(enu, h_hours, dec_deg, uvw_m, elaz, rate):
 def test_source_direction_tms_table(enu, h_hours, dec_deg, uvw_m, elaz, rate):
     """Source elevation and azimuth (north through east) of the TMS table rows
     (computed; CHECKS.md)."""
-    from scheduler.sky import altaz
+    from scheduler.geometry.sky import altaz
 
     lat, ha, dec = np.radians(LAT_TMS_DEG), np.radians(15.0 * h_hours), np.radians(dec_deg)
     alt, az = np.degrees(altaz(*enu_from_hadec(ha, dec, lat)))

@@ -17,11 +17,11 @@ from astropy.time import Time
 from astropy.utils.exceptions import AstropyWarning
 from conftest import build_beams
 
-import scheduler  # noqa: F401  (offline astropy first)
-from scheduler.delay import projected_path
-from scheduler.ephemeris import earth_frame, location, radec_places, to_time
-from scheduler.model import Site
-from scheduler.sky import altaz, enu_from_cirs, hour_angle, separation
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.astro.ephemeris import earth_frame, location, radec_places, to_time
+from scheduler.geometry.delay import projected_path
+from scheduler.geometry.sky import altaz, enu_from_cirs, hour_angle, separation
+from scheduler.model.array import Site
 
 # --- tolerances --------------------------------------------------------------------
 ARCSEC_RAD = np.pi / (180.0 * 3600.0)

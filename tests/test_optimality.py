@@ -2,7 +2,7 @@
 
 Reference: brute force, no outside source.  Every ordered subset of the candidate
 visits (built exactly as ``plan_night`` builds them) is timed with the exact,
-compacting timing of :mod:`scheduler.timing`; a sequence counts when every one of its
+compacting timing of :mod:`scheduler.queue.timing`; a sequence counts when every one of its
 visits fits, every science visit that needs calibrators has one before and one after it
 within the gap, and every calibrator serves one (the plans ``plan_night`` can return).
 Its value is the sum of priority x hours of its science visits.  ``plan_night`` with the
@@ -19,9 +19,11 @@ from __future__ import annotations
 import pytest
 from _plan_cases import Case, small_instance
 
-from scheduler.plan_model import Plan, PlanSettings
-from scheduler.planner import plan_night, science_value
-from scheduler.timing import brackets, time_sequence, to_visits
+from scheduler.model.plan import Plan, PlanSettings, PlanSummary
+from scheduler.queue.planner import plan_night
+from scheduler.queue.scoring import science_value
+from scheduler.queue.timing import brackets, time_sequence
+from scheduler.queue.visits import to_visits
 
 VALUE_TOL = 1e-6  # priority x hours
 MAX_CANDIDATES = 7
@@ -41,9 +43,9 @@ def _cannot_recover(timed, targets, suits, gap_s: float) -> bool:
     a science visit lacks a calibrator before it, or lacks one after it while the
     prefix already runs past the gap after its end."""
     last_end = timed[-1][1] + timed[-1][0].duration_s
-    cals = [(k, ks) for k, ks, _ in timed if k.value == 0]
+    cals = [(k, ks) for k, ks, _ in timed if not k.is_science]
     for c, st, _ in timed:
-        if c.value == 0 or not targets.needs_calibrator[c.target]:
+        if not c.is_science or not targets.needs_calibrator[c.target]:
             continue
         end = st + c.duration_s
         fit = [(k, ks) for k, ks in cals if suits[c.target, k.target]]
@@ -54,27 +56,28 @@ def _cannot_recover(timed, targets, suits, gap_s: float) -> bool:
     return False
 
 
-def brute_force(case: Case, settings: PlanSettings, cands, suits):
+def brute_force(case: Case, settings: PlanSettings, q):
     """(best value, its timed sequence, sequences searched) over every ordered subset
     of ``cands``: depth first, pruned where a prefix no longer times fully, can no
     longer be bracketed, or cannot beat the best found.  Copies of one calibrator (and
     visits of one target) are taken in number order: they are interchangeable."""
-    ctx, targets = case.ctx, case.ctx.targets
+    problem, targets, suits = case.problem, case.problem.targets, q.suits
+    cands = list(q.candidates)
     gap = settings.calibrator_gap_s
-    hint = ctx.night.start_s  # compact timing ignores hints
+    hint = problem.night.start_s  # compact timing ignores hints
     order = sorted(range(len(cands)), key=lambda k: -cands[k].value)
     best = {"value": 0.0, "timed": [], "searched": 0}
 
     def visit(seq, used, value, rest):
         best["searched"] += 1
         if seq:
-            timed = time_sequence(ctx, [(c, hint) for c in seq], compact=True)
+            timed = time_sequence(problem, [(c, hint) for c in seq], compact=True)
             if len(timed) < len(seq) or _cannot_recover(timed, targets, suits, gap):
                 return
-            br = brackets(timed, targets, suits, gap)
+            br = brackets(timed, q)
             served = {cid for pair in br.values() if pair for cid in pair}
             valid = all(pair is not None for pair in br.values())
-            valid &= all(c.value > 0 or c.id in served for c in seq)
+            valid &= all(c.is_science or c.id in served for c in seq)
             if valid and value > best["value"] + VALUE_TOL:
                 best["value"], best["timed"] = value, timed
         if value + rest <= best["value"] + VALUE_TOL:
@@ -95,10 +98,11 @@ def instance(request):
     doc, rows, copies = small_instance(request.param)
     case = Case(doc, rows)
     settings = _settings(copies)
-    _, suits, cands = case.candidates(settings)
-    value, timed, searched = brute_force(case, settings, cands, suits)
-    return {"seed": request.param, "case": case, "settings": settings, "cands": cands,
-            "suits": suits, "best": value, "timed": timed, "searched": searched}  # fmt: skip
+    q = case.queue(settings)
+    value, timed, searched = brute_force(case, settings, q)
+    return {"seed": request.param, "case": case, "settings": settings,
+            "cands": list(q.candidates), "q": q, "best": value, "timed": timed,
+            "searched": searched}  # fmt: skip
 
 
 def test_instance_is_small_and_crowded(instance):
@@ -106,7 +110,7 @@ def test_instance_is_small_and_crowded(instance):
     exhaustive search, a calibrator among them, and not everything fits."""
     cands = instance["cands"]
     assert 2 <= len(cands) <= MAX_CANDIDATES
-    assert any(c.value == 0 for c in cands)
+    assert any(not c.is_science for c in cands)
     assert 0 < instance["best"] < sum(c.value for c in cands) - VALUE_TOL
 
 
@@ -114,20 +118,22 @@ def test_brute_force_optimum_is_a_valid_plan(instance):
     """The reference plan itself passes the independent verifier (astropy's full
     transform), and its value from the timed visits equals the searched value."""
     case, settings, timed = instance["case"], instance["settings"], instance["timed"]
-    br = brackets(timed, case.targets, instance["suits"], settings.calibrator_gap_s)
-    visits = to_visits(case.ctx, timed, br)
-    assert science_value(visits, case.ctx) == pytest.approx(instance["best"], abs=VALUE_TOL)
-    assert case.problems(Plan(tuple(visits), ()), settings) == []
+    br = brackets(timed, instance["q"])
+    visits = to_visits(case.problem, timed, br)
+    assert science_value(visits, case.targets) == pytest.approx(instance["best"], abs=VALUE_TOL)
+    summary = PlanSummary("reference", 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0, 0.0)
+    assert case.problems(Plan(tuple(visits), (), summary), settings) == []
 
 
 def test_optimiser_reaches_brute_force_optimum(instance):
     """plan_night('optimize') reaches the exhaustive optimum, reports a bound no lower
     than it (the bounding model relaxes every real plan), and its plan verifies."""
     case, settings = instance["case"], instance["settings"]
-    plan = plan_night(case.ctx, settings, "optimize")
-    got = science_value(list(plan.visits), case.ctx)
+    plan = plan_night(case.problem, settings, "optimize")
+    got = science_value(list(plan.visits), case.targets)
     assert case.problems(plan, settings) == []
-    assert plan.summary["bound"] >= instance["best"] - VALUE_TOL
+    assert plan.summary.bound is not None
+    assert plan.summary.bound >= instance["best"] - VALUE_TOL
     assert got == pytest.approx(instance["best"], abs=VALUE_TOL), (
         f"seed {instance['seed']}: optimiser {got:.4f} vs brute force {instance['best']:.4f}; "
         f"plan {[v.id for v in plan.visits]}, optimum "

@@ -9,7 +9,7 @@ from pathlib import Path
 import pytest
 from astropy.table import Table
 
-from scheduler.cli import main
+from scheduler.cli.main import main
 
 ROOT = Path(__file__).resolve().parent.parent
 ARRAY = str(ROOT / "catalogs" / "demo_array.toml")
@@ -42,7 +42,7 @@ def test_files_are_complete_and_consistent(written):
     assert list(table["obs_id"]) == ids
     assert str(table["t_min"].unit) == "d" and str(table["s_ra"].unit) == "deg"
     # MJD of the first start agrees with its ISO time (MJD 40587 = 1970-01-01, calendar fact)
-    from scheduler.catalog import parse_utc
+    from scheduler.model.times import parse_utc
 
     assert table["t_min"][0] == pytest.approx(parse_utc(doc["visits"][0]["start_utc"]) / 86400
                                               + 40587.0, abs=1e-8)  # fmt: skip
@@ -65,7 +65,8 @@ def test_verify_accepts_and_rejects(written, tmp_path, capsys):
     ("content", "expected"),
     [('{"schema": "other/2", "visits": []}', "schema: expected 'opdplan-plan/1', got 'other/2'"),
      ('{"schema": "opdplan-plan/1", "visits": [', "not valid JSON"),
-     ("[1, 2]", "schema: expected 'opdplan-plan/1', got None")],
+     ("[1, 2]", "schema: expected 'opdplan-plan/1', got None"),
+     ('{"schema": "opdplan-plan/1", "visits": NaN}', "not valid JSON")],
 )  # fmt: skip
 def test_bad_plan_files(tmp_path, capsys, content, expected):
     path = tmp_path / "p.json"
@@ -73,6 +74,20 @@ def test_bad_plan_files(tmp_path, capsys, content, expected):
     code = main(["verify", str(path), "--array", ARRAY, "--targets", TARGETS])
     err = capsys.readouterr().err.strip().splitlines()
     assert code == 2 and len(err) == 1 and expected in err[0] and str(path) in err[0]
+
+
+def test_plan_missing_a_field_or_with_nan_fails_its_schema(written, tmp_path, capsys):
+    """Published JSON Schema first (jsonschema): a visit without ``end_utc`` is a problem
+    naming the field, exit 2, never ``valid: true``."""
+    _, paths = written
+    doc = json.loads(paths["json"].read_text())
+    del doc["visits"][1]["end_utc"]
+    bad = tmp_path / "bad.json"
+    bad.write_text(json.dumps(doc))
+    capsys.readouterr()
+    assert main(["verify", str(bad), "--array", ARRAY, "--targets", TARGETS]) == 2
+    err = capsys.readouterr().err
+    assert "visits[1]" in err and "'end_utc' is a required property" in err
 
 
 def test_bad_input_writes_nothing(tmp_path, capsys):
@@ -83,3 +98,18 @@ def test_bad_input_writes_nothing(tmp_path, capsys):
     assert not out.exists() and list(tmp_path.iterdir()) == []
     args = BASE + ["--out", str(out), "--time-limit", "0"]
     assert main(args) == 2 and "--time-limit" in capsys.readouterr().err
+
+
+def test_every_bad_input_is_reported_together(tmp_path, capsys):
+    """A bad array, a bad catalog and a bad --night: three lines, exit 2, nothing written."""
+    array = tmp_path / "a.toml"
+    array.write_text("[site]\nname = 'x'\nlatitude_deg = 95\n")
+    catalog = tmp_path / "t.csv"
+    catalog.write_text("name,ra,dec,duration_min\nA,1,-100,30\n")
+    out = tmp_path / "p.json"
+    code = main(["plan", "--array", str(array), "--config", "c", "--targets", str(catalog),
+                 "--night", "tomorrow", "--out", str(out)])  # fmt: skip
+    err = capsys.readouterr().err
+    assert code == 2 and not out.exists()
+    assert "a.toml" in err and "t.csv" in err and "--night: 'tomorrow'" in err
+    assert "Traceback" not in err

@@ -1,5 +1,6 @@
-"""The night picture: a PNG written atomically (PNG signature from the PNG
-specification, ISO/IEC 15948; the size floor is common practice, no source)."""
+"""The night picture: a PNG (signature from the PNG specification, ISO/IEC 15948; the
+size floor is common practice, no source), and ``--plot`` without matplotlib refused
+before any work."""
 
 from __future__ import annotations
 
@@ -8,11 +9,11 @@ from pathlib import Path
 
 import pytest
 
-from scheduler.commands.common import load_inputs
-from scheduler.errors import InputError
-from scheduler.plan_model import PlanSettings
-from scheduler.planner import plan_night
-from scheduler.plot import plot_plan
+from scheduler.cli.commands.common import load_inputs
+from scheduler.cli.main import main
+from scheduler.model.plan import PlanSettings
+from scheduler.output.plot import plan_png
+from scheduler.queue.planner import plan_night
 
 ROOT = Path(__file__).resolve().parent.parent
 PNG_SIGNATURE = b"\x89PNG\r\n\x1a\n"
@@ -24,34 +25,23 @@ def planned():
     pytest.importorskip("matplotlib")
     inputs = load_inputs(ROOT / "catalogs" / "demo_array.toml", "medium",
                          ROOT / "catalogs" / "demo_targets.csv", "2027-04-18")  # fmt: skip
-    ctx = inputs.context()
+    ctx = inputs.problem()
     return ctx, plan_night(ctx, PlanSettings(), "greedy")
 
 
-def test_writes_a_png_and_leaves_no_temporary_file(planned, tmp_path):
+def test_png_of_a_plan(planned):
     ctx, plan = planned
-    out = tmp_path / "night.png"
-    plot_plan(ctx, plan, out)
-    data = out.read_bytes()
+    data = plan_png(ctx, plan)
     assert data[: len(PNG_SIGNATURE)] == PNG_SIGNATURE
     assert len(data) > MIN_PNG_BYTES
-    assert [p.name for p in tmp_path.iterdir()] == ["night.png"]
 
 
-def test_replaces_an_existing_file(planned, tmp_path):
-    ctx, plan = planned
-    out = tmp_path / "night.png"
-    out.write_bytes(b"old")
-    plot_plan(ctx, plan, str(out))
-    assert out.read_bytes().startswith(PNG_SIGNATURE)
-    assert [p.name for p in tmp_path.iterdir()] == ["night.png"]
-
-
-def test_missing_matplotlib_is_an_input_error(planned, tmp_path, monkeypatch):
-    ctx, plan = planned
+def test_missing_matplotlib_is_refused_before_any_work(tmp_path, monkeypatch, capsys):
     monkeypatch.setitem(sys.modules, "matplotlib", None)
-    with pytest.raises(InputError) as err:
-        plot_plan(ctx, plan, tmp_path / "night.png")
-    assert err.value.problems[0].source == "--plot"
-    assert "matplotlib" in err.value.problems[0].message
+    out = tmp_path / "night.png"
+    code = main(["plan", "--array", str(ROOT / "catalogs" / "demo_array.toml"), "--config",
+                 "medium", "--targets", str(ROOT / "catalogs" / "demo_targets.csv"), "--night",
+                 "2027-04-18", "--plot", str(out)])  # fmt: skip
+    err = capsys.readouterr().err
+    assert code == 2 and "--plot" in err and "matplotlib" in err
     assert list(tmp_path.iterdir()) == []

@@ -7,8 +7,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-import scheduler  # noqa: F401  (offline astropy first)
-from scheduler.reposition import minimax_move, move_time_s
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.geometry.reposition import minimax_move, move_time_s
 
 # --- tolerances --------------------------------------------------------------------
 MINIMAX_TOL_S = 1e-9  # no sampled dK may beat the returned move by more than this

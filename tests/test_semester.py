@@ -10,22 +10,23 @@ arrays and catalogs are invented test data.
 from __future__ import annotations
 
 import datetime as dt
+import json
 from pathlib import Path
 
 import numpy as np
 import pandas as pd
 import pytest
 
-from scheduler.array_file import parse_array
-from scheduler.availability import semester_availability
-from scheduler.catalog import parse_targets
-from scheduler.cli import main
-from scheduler.constraints import SkyContext
-from scheduler.fit import judge
-from scheduler.night import find_night
-from scheduler.semester import Request, Semester
-from scheduler.simulate import Scenario, odds, simulate
-from scheduler.windows import observable_windows
+from scheduler.astro.night import find_night
+from scheduler.astro.problem import night_problem
+from scheduler.cli.main import main
+from scheduler.geometry.windows import observable_windows
+from scheduler.inputs.array_file import parse_array
+from scheduler.inputs.catalog import parse_targets
+from scheduler.model.semester import CalendarEntry, Request, Semester
+from scheduler.semester.availability import semester_availability
+from scheduler.semester.fit import judge
+from scheduler.semester.simulate import Scenario, odds, simulate
 
 ROOT = Path(__file__).resolve().parent.parent
 STEP_S = 300.0
@@ -59,8 +60,6 @@ def _semester(first, days, fraction=0.8):
     start = dt.date.fromisoformat(first)
     end = start + dt.timedelta(days=days - 1)
     months = tuple((m, fraction) for m in range(1, 13))
-    from scheduler.semester import CalendarEntry
-
     return Semester(start, end, (CalendarEntry("c", start, end),), months, "test")
 
 
@@ -71,7 +70,7 @@ def test_availability_is_the_sum_of_nightly_windows():
     av = semester_availability(array, targets, sem, {(i, "c") for i in range(3)}, STEP_S)
     for night_date in sem.nights():
         night = find_night(array, night_date)
-        windows = observable_windows(SkyContext.prepare(array, array.beams("c"), targets, night))
+        windows = observable_windows(night_problem(array, array.beams("c"), targets, night))
         for i, w in enumerate(windows):
             # sampling at mid-cells: each window edge is off by at most half a cell
             tol_h = (len(w.observable) + 1) * STEP_S / 3600.0
@@ -133,6 +132,8 @@ def test_clear_weather_small_request_completes(scenario):
 BAD = [
     ("[[calendar]]\nconfiguration = 'nowhere'\nfrom = '2027-04-01'\nto = '2027-04-10'\n",
      "calendar[0].configuration: 'nowhere' is not a configuration"),
+    ("[[calendar]]\nconfiguration = 'compact'\nfrom = '2027-04-01'\nto = '2027-04-10'\n"
+     "colour = 'blue'\n", "calendar[0].colour: unknown key"),
     ("[[calendar]]\nconfiguration = 'compact'\nfrom = '2027-04-01'\nto = '2027-04-20'\n"
      "[[calendar]]\nconfiguration = 'long'\nfrom = '2027-04-15'\nto = '2027-04-30'\n",
      "calendar[1]: overlaps calendar[0]"),
@@ -171,3 +172,61 @@ def _fit(semester, proposals):
                  str(ROOT / "catalogs" / "demo_array.toml"), "--targets",
                  str(ROOT / "catalogs" / "demo_targets.csv"), "--proposals", str(proposals),
                  "--json"])  # fmt: skip
+
+
+def test_unknown_keys_and_a_bare_number_for_the_weather(tmp_path, capsys):
+    """Misspelt keys inside tables and ``usable_fraction = 3`` are problems reported
+    together (one line each), never a traceback."""
+    path = tmp_path / "s.toml"
+    path.write_text("[semester]\nstart = '2027-04-01'\nend = '2027-04-30'\nende = 1\n"
+                    "[[calendar]]\nconfiguration = 'compact'\nfrom = '2027-04-01'\n"
+                    "to = '2027-04-30'\n[weather]\nusable_fraction = 3\n")  # fmt: skip
+    code = _fit(path, ROOT / "examples" / "demo_proposals.csv")
+    err = capsys.readouterr().err
+    assert code == 2 and "Traceback" not in err
+    assert "semester.ende: unknown key" in err
+    assert "weather.usable_fraction: must map month numbers to fractions, got 3" in err
+
+
+def test_bad_array_catalog_and_semester_are_reported_together(tmp_path, capsys):
+    """Three bad inputs at once: one line for each file, exit 2."""
+    array = tmp_path / "a.toml"
+    array.write_text("[site]\nname = 'x'\n")
+    catalog = tmp_path / "t.csv"
+    catalog.write_text("name,ra\nA,1\n")
+    sem = tmp_path / "s.toml"
+    sem.write_text("[semester]\nstart = 'soon'\n")
+    code = main(["fit", "--semester", str(sem), "--array", str(array), "--targets",
+                 str(catalog), "--proposals", str(ROOT / "examples" / "demo_proposals.csv")])
+    err = capsys.readouterr().err
+    assert code == 2
+    for name in ("a.toml", "t.csv", "s.toml"):
+        assert name in err, err
+
+
+def test_fit_success_path_with_simulation(tmp_path, capsys):
+    """The committee's answer end to end on the short demo semester: every requested
+    target has a verdict from the README's set, and the odds are probabilities."""
+    code = main(["fit", "--semester", str(ROOT / "examples" / "demo_semester_short.toml"),
+                 "--array", str(ROOT / "catalogs" / "demo_array.toml"), "--targets",
+                 str(ROOT / "catalogs" / "demo_targets.csv"), "--proposals",
+                 str(ROOT / "examples" / "demo_proposals.csv"), "--simulate", "2", "--seed",
+                 "3", "--json"])  # fmt: skip
+    assert code == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["targets"] and all(t["verdict"] in ("fits", "tight", "does not fit")
+                                  for t in doc["targets"])  # fmt: skip
+    odds_ = [p["completion_probability"] for p in doc["proposals"]]
+    assert odds_ and all(0.0 <= p <= 1.0 for p in odds_)
+    assert doc["simulation"] == {"realisations": 2, "seed": 3}
+
+
+def test_unreachable_cluster_is_one_line(tmp_path, capsys):
+    """A Dask scheduler that does not answer: one line naming --cluster, exit 2."""
+    code = main(["fit", "--semester", str(ROOT / "examples" / "demo_semester_short.toml"),
+                 "--array", str(ROOT / "catalogs" / "demo_array.toml"), "--targets",
+                 str(ROOT / "catalogs" / "demo_targets.csv"), "--proposals",
+                 str(ROOT / "examples" / "demo_proposals.csv"), "--simulate", "2",
+                 "--cluster", "tcp://127.0.0.1:1"])  # fmt: skip
+    err = capsys.readouterr().err.strip().splitlines()
+    assert code == 2 and len(err) == 1 and err[0].startswith("opdplan: error: --cluster"), err

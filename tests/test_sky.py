@@ -10,11 +10,8 @@ import numpy as np
 import pytest
 from astropy.time import Time
 
-import scheduler  # noqa: F401  (offline astropy first)
-from scheduler.sky import (
-    ERA_RATE_RAD_S,
-    OMEGA_EARTH_RAD_S,
-    EarthFrame,
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.geometry.sky import (
     airmass,
     altaz,
     enu_from_cirs,
@@ -22,6 +19,7 @@ from scheduler.sky import (
     enu_rate,
     hour_angle,
 )
+from scheduler.model.frames import ERA_RATE_RAD_S, OMEGA_EARTH_RAD_S, EarthFrame
 
 # --- tolerances (one place per file) ---------------------------------------------
 GMST_IAU1982_TOL_S = 1e-3  # CHECKS.md: 1 ms with the IAU 1982 model

@@ -5,12 +5,13 @@ own testing practice: render into a StringIO at a fixed width and read the text)
 from __future__ import annotations
 
 import io
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
 from rich.console import Console
 
-from scheduler.timeline_rows import timeline_view
+from scheduler.views.timeline_rows import timeline_view
 
 ROOT = Path(__file__).resolve().parent.parent
 WIDTHS = (80, 140)
@@ -107,6 +108,6 @@ def test_carriage_positions_on_wide_consoles_only(rendered):
 
 def test_bound_and_gap_are_shown_when_present(planned):
     ctx, plan, doc = planned
-    doc = dict(doc, summary=dict(doc["summary"], bound=41.25, gap=0.0988))
+    plan = replace(plan, summary=replace(plan.summary, bound=41.25, gap=0.0988))
     text = render(timeline_view(ctx, plan, doc), 80)
     assert "bound 41.25" in text and "gap 9.9%" in text

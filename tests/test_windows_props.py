@@ -22,15 +22,18 @@ from astropy.utils.exceptions import AstropyWarning
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-import scheduler  # noqa: F401  (offline astropy first)
-from scheduler.array_file import parse_array
-from scheduler.catalog import parse_targets
-from scheduler.constraints import HIGH, LOW, OK, SkyContext, evaluate
-from scheduler.delay import offset_span, projected_path
-from scheduler.ephemeris import location, to_time
-from scheduler.night import NoDarkTime, find_night
-from scheduler.sky import separation
-from scheduler.windows import observable_windows
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.astro.ephemeris import location, to_time
+from scheduler.astro.night import NoDarkTime, find_night
+from scheduler.astro.problem import night_problem
+from scheduler.geometry.bodies import enu_at
+from scheduler.geometry.constraints import evaluate
+from scheduler.geometry.delay import offset_span, projected_path
+from scheduler.geometry.sky import separation
+from scheduler.geometry.windows import observable_windows
+from scheduler.inputs.array_file import parse_array
+from scheduler.inputs.catalog import parse_targets
+from scheduler.model.reasons import Limit, limit_of
 
 # --- tolerances --------------------------------------------------------------------
 ARCSEC_RAD = np.pi / (180.0 * 3600.0)
@@ -98,7 +101,7 @@ def night_setup():
     beams = array.beams("four")
     targets = parse_targets(_targets_frame(np.random.default_rng(418), N_TARGETS))
     night = find_night(array, NIGHT_DATE)
-    ctx = SkyContext.prepare(array, beams, targets, night)
+    ctx = night_problem(array, beams, targets, night)
     windows = observable_windows(ctx)
     return {"array": array, "beams": beams, "targets": targets, "night": night,
             "ctx": ctx, "windows": windows}  # fmt: skip
@@ -138,10 +141,8 @@ def test_setup_is_not_trivial(night_setup):
     altitude, a horizon mask and the delay range."""
     wins = night_setup["windows"]
     assert sum(len(w.observable) for w in wins) >= 10
-    codes = {c for w in wins for (_, _, c) in w.excluded}
-    assert LOW in codes
-    assert any(100 <= c < 1000 for c in codes)  # horizon mask
-    assert any(c >= 1000 for c in codes)  # delay range
+    limits = {int(limit_of(c)) for w in wins for (_, _, c) in w.excluded}
+    assert {Limit.LOW, Limit.HORIZON, Limit.DELAY} <= limits
 
 
 def test_instants_inside_windows_are_ok(night_setup):
@@ -153,8 +154,8 @@ def test_instants_inside_windows_are_ok(night_setup):
     spans = [iv for w in wins for iv in w.observable]
     k, t = _interior_samples(spans, rng, SAMPLES_PER_STRETCH)
     code = evaluate(ctx, tgt[k], t).code
-    assert np.all(code == OK), list(
-        zip(tgt[k][code != OK], t[code != OK], code[code != OK], strict=True)
+    assert np.all(code == Limit.OK), list(
+        zip(tgt[k][code != Limit.OK], t[code != Limit.OK], code[code != Limit.OK], strict=True)
     )
 
 
@@ -167,7 +168,7 @@ def test_instants_in_excluded_stretches_are_not_ok(night_setup):
     spans = [(a, b) for w in wins for (a, b, _) in w.excluded]
     k, t = _interior_samples(spans, rng, SAMPLES_PER_STRETCH)
     code = evaluate(ctx, tgt[k], t).code
-    assert np.all(code != OK)
+    assert np.all(code != Limit.OK)
 
 
 def test_windows_cover_the_night(night_setup):
@@ -183,7 +184,7 @@ def test_windows_cover_the_night(night_setup):
 
 def _window_edges(night_setup):
     """Window edges that are not night bounds: (target, time, side) with side +1
-    for an opening edge (OK after it) and -1 for a closing edge."""
+    for an opening edge (Limit.OK after it) and -1 for a closing edge."""
     night = night_setup["night"]
     out = []
     for i, w in enumerate(night_setup["windows"]):
@@ -229,12 +230,12 @@ def test_altitude_limited_edges_against_astropy(night_setup):
         for a, b, code in w.excluded:
             for edge in (a, b):
                 touching = any(edge in (oa, ob) for oa, ob in w.observable)
-                if touching and code in (LOW, HIGH):
+                if touching and code in (Limit.LOW, Limit.HIGH):
                     picks.append((i, edge, code))
     assert picks
     idx = np.array([p[0] for p in picks])
     t = np.array([p[1] for p in picks])
-    limit = np.where(np.array([p[2] for p in picks]) == LOW,
+    limit = np.where(np.array([p[2] for p in picks]) == Limit.LOW,
                      lim.min_altitude_rad + margin, lim.max_altitude_rad - margin)  # fmt: skip
     _, alt, _ = _astropy_enu(night_setup["targets"], idx, t, night_setup["array"].site)
     assert np.max(np.abs(alt - limit)) < ALT_EDGE_TOL_RAD
@@ -347,7 +348,7 @@ def test_night_body_tracks_against_astropy(lat, lon, height, date, body, tol):
         ref = get_body(body, times, location=loc).transform_to(frame)
     alt, az = ref.alt.to_value(u.rad), ref.az.to_value(u.rad)
     track = night.sun if body == "sun" else night.moon
-    e, n, up = track.enu_at(night.frame, t)
+    e, n, up = enu_at(track, night.frame, t)
     sep = separation(e, n, up, np.cos(alt) * np.sin(az), np.cos(alt) * np.cos(az), np.sin(alt))
     assert np.max(sep) < tol
 

@@ -14,8 +14,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from scheduler.model.array import Beams
 from scheduler.geometry.sky import enu_rate
+from scheduler.model.array import Beams
 from scheduler.model.frames import OMEGA_EARTH_RAD_S
 
 

@@ -18,6 +18,7 @@ import numpy as np
 
 from scheduler.model.frames import OMEGA_EARTH_RAD_S, EarthFrame
 
+
 def enu_from_hadec(ha_rad, dec_rad, lat_rad):
     """ENU unit vector components of hour angle / declination at latitude (no
     refraction, aberration or polar motion).  Returns ``(e, n, u)``."""

@@ -13,8 +13,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from scheduler.model.array import Beams, Overheads
 from scheduler.geometry.reposition import minimax_move, move_upper_bound
+from scheduler.model.array import Beams, Overheads
 
 
 @dataclass(frozen=True, eq=False)

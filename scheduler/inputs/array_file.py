@@ -12,7 +12,6 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from scheduler.model.errors import InputError, Problem, ProblemList
 from scheduler.model.array import (
     ArrayModel,
     Configuration,
@@ -22,6 +21,7 @@ from scheduler.model.array import (
     Site,
     Station,
 )
+from scheduler.model.errors import InputError, Problem, ProblemList
 
 _TOP = {"site", "limits", "overheads", "stations", "delay_lines", "configurations"}
 _SITE = {"name", "latitude_deg", "longitude_deg", "height_m"}

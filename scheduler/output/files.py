@@ -42,6 +42,11 @@ def _same(a: Path, b: Path) -> bool:
         return False
 
 
+def same_file(a: str | Path, b: str | Path) -> bool:
+    """Whether two paths name one file (through links), existing or not."""
+    return _same(Path(a), Path(b)) or os.path.realpath(a) == os.path.realpath(b)
+
+
 def _check_one(option: str, given: str, g: Gather) -> OutputPath | None:
     path = Path(given)
     target = Path(os.path.realpath(path))  # through every link; the path itself if none

@@ -23,15 +23,21 @@ models solve to optimality in seconds on the demo night.
 
 from __future__ import annotations
 
+import threading
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 from ortools.sat.python import cp_model
 
 from scheduler.model.plan import Candidate, PlanSettings, Start
 from scheduler.model.problem import NightProblem
-from scheduler.queue.grid import GridTransitions
-from scheduler.queue.optimizer_bounds import abutting_pairs, reserves, slot_bounds, transition_bounds
+from scheduler.queue.optimizer_bounds import (
+    abutting_pairs,
+    reserves,
+    slot_bounds,
+    transition_bounds,
+)
 from scheduler.queue.prepare import QueueInputs
 from scheduler.queue.timing import Timed, brackets
 
@@ -39,6 +45,7 @@ from scheduler.queue.timing import Timed, brackets
 #: night on this project's 2-core machines: planning model about 6, bounding model about 4
 PLAN_S_PER_UNIT, BOUND_S_PER_UNIT = 6.0, 4.0
 PLAN_SHARE = 0.6  # of the time budget, for the planning model; the rest bounds
+JOIN_POLL_S = 0.1  # how often the main thread looks up from a running solve
 NEAREST = 2  # per visit, the predecessors with the shortest transitions that may abut it
 
 
@@ -104,7 +111,8 @@ def build_model(q: QueueInputs, reserve: list[int], acq: int, shortest: int,
 
 
 def _intervals(m: cp_model.CpModel, ctx: NightProblem, cands: list[Candidate],
-               reserve: list[int], first: int, shortest: int, variable: bool) -> Handles:  # fmt: skip
+               reserve: list[int], first: int, shortest: int,
+               variable: bool) -> Handles:  # fmt: skip
     """One optional interval per candidate (its reserved transition, then the visit),
     no two overlapping, and the night's length as a knapsack."""
     t0 = ctx.night.start_s
@@ -333,6 +341,36 @@ def _apply_hint(m, h: Handles, cands, hint, br, sizes=None, tight=frozenset()) -
         m.add_hint(lit, key in tight)
 
 
+def solve_interruptibly(solver: cp_model.CpSolver, model: cp_model.CpModel) -> Any:
+    """``solver.solve(model)`` in a worker thread, so that Ctrl-C reaches the main thread
+    at once: the search is stopped, the worker waited for, and KeyboardInterrupt raised
+    (CP-SAT's own handler is off, see ``catch_sigint_signal``).  An Event, not
+    ``Thread.join``, marks the end: a join interrupted by Ctrl-C can return early."""
+    box: dict[str, Any] = {}
+    done = threading.Event()
+
+    def work() -> None:
+        try:
+            box["status"] = solver.solve(model)
+        except BaseException as exc:  # re-raised in the calling thread
+            box["error"] = exc
+        finally:
+            done.set()
+
+    threading.Thread(target=work, name="cp-sat", daemon=True).start()
+    try:
+        while not done.wait(JOIN_POLL_S):
+            pass
+    except KeyboardInterrupt:
+        solver.stop_search()
+        while not done.wait(JOIN_POLL_S):
+            pass
+        raise
+    if "error" in box:
+        raise box["error"]
+    return box["status"]
+
+
 def solve(m, h: Handles, cands, s: PlanSettings, budget_s: float, t0: float,
           s_per_unit: float = PLAN_S_PER_UNIT):  # fmt: skip
     """Solve with explicit parameters; (status name, objective, bound, wall, sequence).
@@ -345,6 +383,7 @@ def solve(m, h: Handles, cands, s: PlanSettings, budget_s: float, t0: float,
     prm = solver.parameters
     prm.random_seed = s.seed
     prm.cp_model_probing_level = 0
+    prm.catch_sigint_signal = False  # Ctrl-C belongs to the command: it must stop it
     if s.deterministic:
         prm.num_workers = 1
         prm.max_deterministic_time = max(0.05, budget_s / s_per_unit)
@@ -352,7 +391,7 @@ def solve(m, h: Handles, cands, s: PlanSettings, budget_s: float, t0: float,
     else:
         prm.num_workers = 2
         prm.max_time_in_seconds = max(0.2, budget_s)
-    status = solver.solve(m)
+    status = solve_interruptibly(solver, m)
     name = solver.status_name(status)
     if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
         # the proven bound stands even when no solution was found in time

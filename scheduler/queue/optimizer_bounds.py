@@ -12,9 +12,9 @@ from __future__ import annotations
 
 import numpy as np
 
-from scheduler.queue.grid import GridTransitions
-from scheduler.model.plan import Candidate
 from scheduler.geometry.transitions import transition
+from scheduler.model.plan import Candidate
+from scheduler.queue.grid import GridTransitions
 
 BOUND_STEP_S = 600.0  # sampling of the night for the night-long bounds
 BOUND_LAG_S = 600.0  # typical length of a transition, between end of u and start of v

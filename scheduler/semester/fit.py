@@ -13,9 +13,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from scheduler.semester.availability import Availability
-from scheduler.model.targets import Targets
 from scheduler.model.semester import Request, Semester
+from scheduler.model.targets import Targets
+from scheduler.semester.availability import Availability
 
 FIT_MARGIN = 1.5
 ORDER = {"fits": 0, "tight": 1, "does not fit": 2}

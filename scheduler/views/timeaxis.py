@@ -40,7 +40,7 @@ class TimeAxis:
 def make_axis(start_s: float, end_s: float, cells: int, lst_of) -> TimeAxis:
     """Ticks on full UTC hours, labelled with the hour and the LST then (``lst_of`` maps
     POSIX seconds to an ``HH:MM`` string).  Labels never overlap."""
-    from scheduler.timefmt import hhmm
+    from scheduler.model.times import hhmm
 
     per_hour = cells * 3600.0 / max(end_s - start_s, 1.0)
     step_h = max(1, int(np.ceil(6.0 / per_hour)))  # labels are 5 characters wide

@@ -7,9 +7,9 @@ visit, the summary items and the unscheduled science targets grouped by reason.
 
 from __future__ import annotations
 
-import numpy as np
-
 from typing import Any
+
+import numpy as np
 
 from scheduler.model.plan import Plan, PlanSummary
 from scheduler.model.problem import NightProblem
@@ -56,7 +56,6 @@ def _spans(ctx: NightProblem, plan: Plan) -> tuple[tuple[float, float, str], ...
     visits, the ``transition`` before each visit (the longer of slew and carriage move,
     then acquisition, right after the previous visit; for the first visit its
     acquisition) and ``idle`` time in between."""
-    t = ctx.targets
     out = []
     cursor = ctx.night.start_s
     for k, v in enumerate(plan.visits):

@@ -15,11 +15,11 @@ import tracemalloc
 
 import numpy as np
 
-import scheduler  # noqa: F401  (astropy offline)
-from scheduler.array_file import parse_array
-from scheduler.delay import offset_span, projected_path
-from scheduler.ephemeris import earth_frame, location, radec_places, to_time
-from scheduler.sky import altaz, grid_enu, separation
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.astro.ephemeris import earth_frame, location, radec_places, to_time
+from scheduler.geometry.delay import offset_span, projected_path
+from scheduler.geometry.sky import altaz, grid_enu, separation
+from scheduler.inputs.array_file import parse_array
 
 N_TARGETS, N_TIMES, N_LINES = 1000, 200, 6
 

@@ -16,16 +16,16 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-
-import scheduler  # noqa: F401  (astropy offline)
-from scheduler.candidates import build_candidates, suitable_calibrators
 from scheduler.catalog import parse_targets
-from scheduler.commands.common import load_inputs
 from scheduler.plan_io import plan_dict
-from scheduler.plan_model import PlanSettings
-from scheduler.planner import plan_night
-from scheduler.verifier import verify_plan
-from scheduler.windows import observable_windows
+
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.cli.commands.common import load_inputs
+from scheduler.geometry.windows import observable_windows
+from scheduler.model.plan import PlanSettings
+from scheduler.queue.candidates import build_candidates, suitable_calibrators
+from scheduler.queue.planner import plan_night
+from scheduler.verify import verify_plan
 
 ROOT = Path(__file__).resolve().parents[2]
 ARRAY = ROOT / "catalogs" / "demo_array.toml"

@@ -14,16 +14,17 @@ import tempfile
 import time
 from pathlib import Path
 
-import scheduler  # noqa: F401  (astropy offline)
 from scheduler.catalog import parse_utc
-from scheduler.commands.common import load_inputs
-from scheduler.night_log import append_record
 from scheduler.plan_io import plan_dict, write_plan
-from scheduler.plan_model import PlanSettings
-from scheduler.planner import plan_night
+
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.cli.commands.common import load_inputs
+from scheduler.inputs.night_log import append_record
+from scheduler.model.plan import PlanSettings
+from scheduler.model.times import iso_utc
+from scheduler.queue.planner import plan_night
 from scheduler.replan import prepare, replan_dict
-from scheduler.timefmt import iso_utc
-from scheduler.verifier import verify_plan
+from scheduler.verify import verify_plan
 
 ROOT = Path(__file__).resolve().parents[2]
 

@@ -17,16 +17,16 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-
-import scheduler  # noqa: F401  (astropy offline)
-from scheduler.array_file import load_array
-from scheduler.availability import semester_availability
 from scheduler.catalog import load_targets, parse_targets
-from scheduler.delay import offset_span, projected_path
-from scheduler.ephemeris import location, to_time
 from scheduler.night import body_tracks, find_night
+
+import scheduler.astro  # noqa: F401  (astropy offline before any transform)
+from scheduler.astro.ephemeris import location, to_time
+from scheduler.geometry.delay import offset_span, projected_path
+from scheduler.inputs.array_file import load_array
 from scheduler.semester import CalendarEntry, Semester, load_proposals, load_semester
-from scheduler.simulate import Scenario, simulate
+from scheduler.semester.availability import semester_availability
+from scheduler.semester.simulate import Scenario, simulate
 
 ROOT = Path(__file__).resolve().parents[2]
 N_TARGETS, N_NIGHTS, STEP_S = 1000, 180, 300.0

@@ -8,7 +8,7 @@ from scheduler.cli.commands.common import Result
 from scheduler.cli.commands.plan import check_time_limit, file_outputs, verified
 from scheduler.model.errors import Gather
 from scheduler.model.plan import PlanSettings
-from scheduler.output.files import check_outputs
+from scheduler.output.files import OutputPath, check_outputs, same_file
 from scheduler.output.plan_document import replan_document
 from scheduler.replan.load import load_replan
 
@@ -19,11 +19,13 @@ def run(args: argparse.Namespace, started_s: float) -> Result:
     from scheduler.views.timeline_rows import timeline_view
 
     g = Gather()
+    outs: list[OutputPath] = []
     check_time_limit(args.time_limit, g)
     reads = [p for p in (args.log, args.array, args.targets) if p]
-    if not args.overwrite:
-        reads.append(args.plan)
-    outs = check_outputs({"--out": args.out}, reads, g)
+    if args.out and same_file(args.out, args.plan) and not args.overwrite:
+        g.add("--out", "", f"{args.out} is the previous plan; add --overwrite to replace it")
+    else:
+        outs = check_outputs({"--out": args.out}, reads, g)
     rp = load_replan(args.plan, args.log, args.now, args.array, args.targets, g)
     settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
                             deterministic=args.deterministic)  # fmt: skip
