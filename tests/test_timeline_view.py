@@ -25,9 +25,10 @@ def planned(demo_greedy):
 
 
 def render(view, width: int) -> str:
-    console = Console(file=io.StringIO(), width=width, force_terminal=False, color_system=None)
+    out = io.StringIO()
+    console = Console(file=out, width=width, force_terminal=False, color_system=None)
     console.print(view)
-    return console.file.getvalue()
+    return out.getvalue()
 
 
 @pytest.fixture(scope="module", params=WIDTHS)

@@ -46,9 +46,8 @@ class _Reader:
     def __init__(self, problems: ProblemList):
         self.p = problems
 
-    def keys(
-        self, table: Any, where: str, required: set[str], optional: frozenset[str] = frozenset()
-    ):
+    def keys(self, table: Any, where: str, required: set[str],
+             optional: set[str] | frozenset[str] = frozenset()) -> bool:  # fmt: skip
         if not isinstance(table, dict):
             self.p.add(where, f"must be a table, got {type(table).__name__}")
             return False

@@ -156,7 +156,7 @@ def _record(data: Any, n: int, p: ProblemList) -> LogRecord | None:
         p.add(where, f"schema: expected {LOG_SCHEMA!r}, got {got!r}")
         return None
     try:
-        event = Event(data.get("event"))
+        event = Event(str(data.get("event")))
     except ValueError:
         p.add(where, f"event {data.get('event')!r} is not one of {[e.value for e in Event]}")
         return None

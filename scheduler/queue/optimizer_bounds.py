@@ -107,3 +107,8 @@ def abutting_pairs(cands: list[Candidate], suits, pair_s, room_s: float, nearest
                     pairs.add((u, v))
         pairs |= {(u, v) for _, u in sorted(near)[:nearest]}
     return pairs
+
+
+def room_s(cands: list[Candidate], shortest: int) -> int:
+    """Seconds between two visits too few for any other visit to fit between them."""
+    return min(int(np.ceil(c.duration_s)) for c in cands) + shortest - 1 if cands else 0

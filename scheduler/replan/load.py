@@ -3,7 +3,6 @@ it was made from (or the ones given), ``--now``, and the night log."""
 
 from __future__ import annotations
 
-from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
@@ -19,6 +18,7 @@ from scheduler.model.array import ArrayModel
 from scheduler.model.errors import Gather, InputError, Problem
 from scheduler.model.plan import Start
 from scheduler.model.problem import NightProblem
+from scheduler.model.targets import Targets
 from scheduler.model.times import iso_utc, parse_night, utc_option
 from scheduler.replan.situation import Situation, origin_of, read_situation
 
@@ -59,14 +59,14 @@ def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | 
     g = g if g is not None else Gather()
     doc = g.take(read_plan, plan_path)
     now_s = g.take(utc_option, now_text, "--now")
-    array = targets = terms = None
+    array: ArrayModel | None = None
+    targets: Targets | None = None
+    terms: LogTerms | None = None
     if doc is not None:
-        load: Callable[[str], Any]
-        for key, given, load in (("array", array_path, load_array),
-                                 ("targets", targets_path, load_targets)):  # fmt: skip
-            src = _source(doc, plan_path, key, given, g)
-            got = g.take(load, src) if src else None
-            array, targets = (got, targets) if key == "array" else (array, got)
+        src = _source(doc, plan_path, "array", array_path, g)
+        array = g.take(load_array, src) if src else None
+        src = _source(doc, plan_path, "targets", targets_path, g)
+        targets = g.take(load_targets, src) if src else None
         terms = LogTerms.of_plan(doc, plan_path)
         if array is not None and doc["configuration"] not in {c.name for c in array.configurations}:
             g.add(plan_path, "configuration", f"{doc['configuration']!r} is not a configuration "

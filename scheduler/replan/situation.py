@@ -3,7 +3,8 @@
 Reads the records up to ``now``: done and aborted visits, closures, stations and delay
 lines out (and back), logged carriage paths.  Records later than ``now`` are reported
 and not used (a closure logged ahead of time is used: it constrains the future), as are
-planned visits that should have ended before ``now`` with no record of being done.
+planned visits that should have ended before ``now`` with no record of being done (unless
+a closure covered them).
 """
 
 from __future__ import annotations
@@ -70,7 +71,8 @@ def read_situation(records: list[LogRecord], warnings: list[str], doc: dict[str,
                             and r.to_s is not None))  # fmt: skip
     aborted = {r.visit for r in records if r.event is Event.ABORTED}
     for v in doc["visits"]:
-        if v["end_s"] <= now_s and v["id"] not in done and v["id"] not in aborted:
+        closed = any(a < v["end_s"] and v["start_s"] < b for a, b in closures)
+        if v["end_s"] <= now_s and v["id"] not in done and v["id"] not in aborted and not closed:
             notes.append(f"{v['id']} was planned to end at {v['end_utc']}, before --now, but "
                          "the log does not say it was done; it may be planned again")  # fmt: skip
     return Situation(now_s, done, closures, frozenset(out), carriages, pointing, tuple(notes))

@@ -11,6 +11,7 @@ say what limits a request.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
@@ -62,7 +63,7 @@ def semester_availability(array: ArrayModel, targets: Targets, semester: Semeste
     """Availability of the (target, configuration) pairs in ``wanted``."""
     configs = sorted({c for _, c in wanted})
     rows = {c: np.array(sorted({i for i, cc in wanted if cc == c})) for c in configs}
-    acc = {c: {"hours": np.zeros(len(r)), "expected": np.zeros(len(r)),
+    acc: dict[str, dict[str, Any]] = {c: {"hours": np.zeros(len(r)), "expected": np.zeros(len(r)),
                "elsewhere": np.zeros(len(r)), "month": np.zeros((13, len(r))),
                "lost": np.zeros((len(FAMILIES), len(r))), "nights": []}
            for c, r in rows.items()}  # fmt: skip

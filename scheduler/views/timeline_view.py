@@ -107,6 +107,11 @@ def _axis(strip: NightStrip, cells: int) -> TimeAxis:
     return TimeAxis(strip.start_s, strip.end_s, cells, tuple(ticks))
 
 
+def _winner(cover: dict[str, float]) -> str:
+    """The kind covering most of a cell, ties by PRIORITY."""
+    return max(PRIORITY, key=lambda k: (cover[k], -PRIORITY.index(k)))
+
+
 def _cells(axis: TimeAxis, spans) -> list[str]:
     """Kind shown in each cell: the kind covering most of it (ties by PRIORITY), then
     every visit made visible in the cell of its middle if it won no cell."""
@@ -117,7 +122,7 @@ def _cells(axis: TimeAxis, spans) -> list[str]:
             lo, hi = max(a, axis.start_s + c * width), min(b, axis.start_s + (c + 1) * width)
             if hi > lo:
                 cover[c][kind] += hi - lo
-    shown = [max(PRIORITY, key=lambda k, cv=cv: (cv[k], -PRIORITY.index(k))) for cv in cover]
+    shown = [_winner(cv) for cv in cover]
     owner = [None] * axis.cells
     for a, b, kind in spans:
         if kind in ("science", "calibrator"):

@@ -34,7 +34,7 @@ class WindowRow:
 
 def bar(axis: TimeAxis, segments) -> Text:
     """The bar of one target: each cell shows the category covering most of it."""
-    cover = [dict() for _ in range(axis.cells)]
+    cover: list[dict[str, float]] = [{} for _ in range(axis.cells)]
     width = (axis.end_s - axis.start_s) / axis.cells
     for a, b, cat in segments:
         for c in range(axis.cell_of(a), axis.cell_of(b) + 1):
@@ -44,7 +44,7 @@ def bar(axis: TimeAxis, segments) -> Text:
                 cover[c][cat] = cover[c].get(cat, 0.0) + hi - lo
     text = Text()
     for cell in cover:
-        cat = max(cell, key=cell.get) if cell else "altitude"
+        cat = max(cell, key=lambda k: cell[k]) if cell else "altitude"
         glyph, style, _ = GLYPHS[cat]
         text.append(glyph, style=style)
     return text

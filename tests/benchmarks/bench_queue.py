@@ -13,18 +13,18 @@ from __future__ import annotations
 import argparse
 import time
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 import pandas as pd
-from scheduler.catalog import parse_targets
-from scheduler.plan_io import plan_dict
 
 import scheduler.astro  # noqa: F401  (astropy offline before any transform)
 from scheduler.cli.commands.common import load_inputs
-from scheduler.geometry.windows import observable_windows
+from scheduler.inputs.catalog import parse_targets
 from scheduler.model.plan import PlanSettings
-from scheduler.queue.candidates import build_candidates, suitable_calibrators
+from scheduler.output.plan_document import plan_document
 from scheduler.queue.planner import plan_night
+from scheduler.queue.prepare import prepare_queue
 from scheduler.verify import verify_plan
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -33,12 +33,12 @@ NIGHT = "2027-04-18"
 
 
 def run(inputs, settings, solver):
-    ctx = inputs.context()
+    ctx = inputs.problem()
     t0 = time.perf_counter()
     plan = plan_night(ctx, settings, solver)
     wall = time.perf_counter() - t0
-    problems = verify_plan(plan_dict(ctx, inputs.array, plan, settings), inputs.array,
-                           inputs.targets)  # fmt: skip
+    problems = verify_plan(plan_document(ctx, inputs.array, plan, settings), inputs.array,
+                           inputs.targets, settings)  # fmt: skip
     assert not problems, problems  # a rejected plan is a bug, never a benchmark figure
     return plan, wall
 
@@ -46,7 +46,7 @@ def run(inputs, settings, solver):
 def invented_catalog(n_science: int, seed: int) -> pd.DataFrame:
     """Fictional science targets up tonight, each with a calibrator 3-8 deg away."""
     rng = np.random.default_rng(seed)
-    rows = []
+    rows: list[dict[str, Any]] = []
     for k in range(n_science):
         ra, dec = rng.uniform(125, 295), rng.uniform(-70, 10)
         rows.append(
@@ -80,24 +80,25 @@ def demo(limit: float) -> None:
     g, o = greedy.summary, best.summary
     print(f"demo night, configuration medium, time limit {limit:.0f} s")
     print(
-        f"  greedy   : value {g['weighted_value']:7.2f}  science {g['science_hours']:.2f} h  "
-        f"carriage {g['idle_carriage_s']:6.0f} s  wall {g_wall:5.1f} s"
+        f"  greedy   : value {g.weighted_value:7.2f}  science {g.science_hours:.2f} h  "
+        f"carriage {g.idle_carriage_s:6.0f} s  wall {g_wall:5.1f} s"
     )
     print(
-        f"  optimise : value {o['weighted_value']:7.2f}  science {o['science_hours']:.2f} h  "
-        f"carriage {o['idle_carriage_s']:6.0f} s  wall {o_wall:5.1f} s  "
-        f"({o.get('status')}, bound {o.get('bound_status')})"
+        f"  optimise : value {o.weighted_value:7.2f}  science {o.science_hours:.2f} h  "
+        f"carriage {o.idle_carriage_s:6.0f} s  wall {o_wall:5.1f} s  "
+        f"({o.report.status}, bound {o.report.bound_status})"
     )
-    print(f"  value ratio    {o['weighted_value'] / g['weighted_value']:.3f}   (goal >= 1.10)")
+    print(f"  value ratio    {o.weighted_value / g.weighted_value:.3f}   (goal >= 1.10)")
     print(
-        f"  carriage ratio {o['idle_carriage_s'] / max(g['idle_carriage_s'], 1e-9):.3f}"
+        f"  carriage ratio {o.idle_carriage_s / max(g.idle_carriage_s, 1e-9):.3f}"
         "   (goal <= 0.5; carriage repositioning time per night)"
     )
-    print(f"  carriage wait  {o['carriage_wait_s']:.0f} s vs {g['carriage_wait_s']:.0f} s greedy "
+    print(f"  carriage wait  {o.carriage_wait_s:.0f} s vs {g.carriage_wait_s:.0f} s greedy "
           "(how much longer transitions last because of the carriages)")  # fmt: skip
     print(
-        f"  proven gap     {o.get('gap', float('nan')):.2%}   (goal <= 5 % within 30 s), "
-        f"bound {o.get('bound')}"
+        f"  proven gap     {o.gap if o.gap is not None else float('nan'):.2%}   "
+        "(goal <= 5 % within 30 s), "
+        f"bound {o.bound}"
     )
 
 
@@ -107,14 +108,12 @@ def scaling(limit: float) -> None:
     for n_sci in (12, 24, 48, 80):
         targets = parse_targets(invented_catalog(n_sci, seed=n_sci), "bench")
         inputs = load_inputs(ARRAY, "medium", targets, NIGHT)
-        ctx = inputs.context()
         settings = PlanSettings(time_limit_s=limit)
-        suits = suitable_calibrators(targets, ctx.beams.longest_baseline_m(), settings)
-        count = len(build_candidates(targets, observable_windows(ctx), suits, settings))
+        count = len(prepare_queue(inputs.problem(), settings).candidates)
         greedy, _ = run(inputs, settings, "greedy")
         best, wall = run(inputs, settings, "optimize")
-        gv, ov = greedy.summary["weighted_value"], best.summary["weighted_value"]
-        gap = best.summary.get("gap", float("nan"))
+        gv, ov = greedy.summary.weighted_value, best.summary.weighted_value
+        gap = best.summary.gap if best.summary.gap is not None else float("nan")
         ratio = ov / max(gv, 1e-9)
         print(f"  {count:10d}  {gv:7.2f}  {ov:8.2f}  {ratio:5.2f}  {gap:6.1%}  {wall:7.1f}")
 

@@ -14,16 +14,15 @@ import tempfile
 import time
 from pathlib import Path
 
-from scheduler.catalog import parse_utc
-from scheduler.plan_io import plan_dict, write_plan
-
 import scheduler.astro  # noqa: F401  (astropy offline before any transform)
 from scheduler.cli.commands.common import load_inputs
 from scheduler.inputs.night_log import append_record
 from scheduler.model.plan import PlanSettings
-from scheduler.model.times import iso_utc
+from scheduler.model.times import iso_utc, parse_utc
+from scheduler.output.files import write_one
+from scheduler.output.plan_document import document_bytes, plan_document, replan_document
 from scheduler.queue.planner import plan_night
-from scheduler.replan import prepare, replan_dict
+from scheduler.replan.load import load_replan
 from scheduler.verify import verify_plan
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -31,11 +30,12 @@ ROOT = Path(__file__).resolve().parents[2]
 
 def replan_once(plan_path, log_path, now, solver, limit):
     t0 = time.perf_counter()
-    array, ctx, origin, old, sit = prepare(str(plan_path), str(log_path), now)
+    rp = load_replan(str(plan_path), str(log_path), now)
     settings = PlanSettings(time_limit_s=limit)
-    plan = plan_night(ctx, settings, solver, t0, origin)
-    doc = replan_dict(ctx, array, plan, settings, origin, old, sit, str(plan_path))
-    problems = verify_plan(doc, array, ctx.targets)
+    plan = plan_night(rp.problem, settings, solver, t0, rp.origin)
+    doc = replan_document(rp.problem, rp.array, plan, settings, rp.origin, rp.previous,
+                          rp.situation, str(plan_path))  # fmt: skip
+    problems = verify_plan(doc, rp.array, rp.problem.targets, settings)
     assert not problems, problems
     return time.perf_counter() - t0, plan
 
@@ -43,13 +43,13 @@ def replan_once(plan_path, log_path, now, solver, limit):
 def main() -> None:
     inputs = load_inputs(ROOT / "catalogs" / "demo_array.toml", "medium",
                          ROOT / "catalogs" / "demo_targets.csv", "2027-04-18")  # fmt: skip
-    ctx = inputs.context()
+    ctx = inputs.problem()
     settings = PlanSettings(time_limit_s=15.0)
     plan = plan_night(ctx, settings, "optimize")
     folder = Path(tempfile.mkdtemp())
     plan_path, log_path = folder / "tonight.json", folder / "night.jsonl"
-    doc = plan_dict(ctx, inputs.array, plan, settings)
-    write_plan(plan_path, doc)
+    doc = plan_document(ctx, inputs.array, plan, settings)
+    write_one(plan_path, document_bytes(doc))
     a, b = doc["visits"][0], doc["visits"][1]
     for v in (a, b):
         append_record(log_path, {"event": "done", "visit": v["id"], "at_utc": v["end_utc"]})
@@ -63,15 +63,15 @@ def main() -> None:
     print("replan of the demo night after a 90-minute closure (2 cores)")
     print(
         f"  first verified plan (greedy / previous order): {first:5.2f} s, "
-        f"value {quick.summary['weighted_value']:.2f}"
+        f"value {quick.summary.weighted_value:.2f}"
     )
     print(
         f"  final verified plan, --time-limit 3         : {total:5.2f} s, "
-        f"value {s['weighted_value']:.2f}, solver {s['solver']}"
+        f"value {s.weighted_value:.2f}, solver {s.solver}"
     )
     print(
-        f"  goal <= 3 s; final gap {s.get('gap', float('nan')):.1%} "
-        f"(bound {s.get('bound')}, {s.get('bound_status')})"
+        f"  goal <= 3 s; final gap {s.gap if s.gap is not None else float('nan'):.1%} "
+        f"(bound {s.bound}, {s.report.bound_status})"
     )
 
 

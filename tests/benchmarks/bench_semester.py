@@ -17,14 +17,15 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-from scheduler.catalog import load_targets, parse_targets
-from scheduler.night import body_tracks, find_night
 
 import scheduler.astro  # noqa: F401  (astropy offline before any transform)
 from scheduler.astro.ephemeris import location, to_time
+from scheduler.astro.night import body_tracks, find_night
 from scheduler.geometry.delay import offset_span, projected_path
 from scheduler.inputs.array_file import load_array
-from scheduler.semester import CalendarEntry, Semester, load_proposals, load_semester
+from scheduler.inputs.catalog import load_targets, parse_targets
+from scheduler.inputs.semester_file import load_proposals, load_semester
+from scheduler.model.semester import CalendarEntry, Semester
 from scheduler.semester.availability import semester_availability
 from scheduler.semester.simulate import Scenario, simulate
 
