@@ -47,6 +47,13 @@ def test_files_are_complete_and_consistent(written):
     assert table["t_min"][0] == pytest.approx(parse_utc(doc["visits"][0]["start_utc"]) / 86400
                                               + 40587.0, abs=1e-8)  # fmt: skip
     assert not [p for p in folder.iterdir() if p.name.startswith(".")]  # no temporary left
+    # times to the millisecond (ISO 8601 allows a decimal fraction of the second), the
+    # same instant as the seconds beside them, so stated carriage paths hold when printed
+    for v in doc["visits"]:
+        assert len(v["start_utc"]) == len("2027-04-19T00:00:00.000Z")
+        assert parse_utc(v["start_utc"]) == pytest.approx(v["start_s"], abs=5e-4)
+    assert "start_utc" in paths["csv"].read_text().splitlines()[0]
+    assert doc["visits"][0]["start_utc"] in paths["csv"].read_text()
 
 
 def test_verify_accepts_and_rejects(written, tmp_path, capsys):
