@@ -8,10 +8,10 @@ the bad value.  Degrees in the file become radians in the model.
 from __future__ import annotations
 
 import math
-import tomllib
 from pathlib import Path
 from typing import Any
 
+from scheduler.inputs.toml_file import read_toml
 from scheduler.model.array import (
     ArrayModel,
     Configuration,
@@ -21,7 +21,7 @@ from scheduler.model.array import (
     Site,
     Station,
 )
-from scheduler.model.errors import InputError, Problem, ProblemList
+from scheduler.model.errors import ProblemList
 
 _TOP = {"site", "limits", "overheads", "stations", "delay_lines", "configurations"}
 _SITE = {"name", "latitude_deg", "longitude_deg", "height_m"}
@@ -88,17 +88,7 @@ class _Reader:
 
 def load_array(path: str | Path) -> ArrayModel:
     """Read an array file; raise :class:`InputError` listing every problem in it."""
-    path = Path(path)
-    source = str(path)
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise InputError(Problem(source, "", "file not found")) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(Problem(source, "", f"cannot read: {exc}")) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(Problem(source, "", f"not valid TOML: {exc}")) from None
-    return parse_array(data, source)
+    return parse_array(read_toml(path), str(path))
 
 
 def parse_array(data: dict, source: str = "<array>") -> ArrayModel:

@@ -11,13 +11,13 @@ from __future__ import annotations
 
 import datetime as dt
 import math
-import tomllib
 from pathlib import Path
 from typing import Any
 
 from scheduler.inputs.catalog import read_table
+from scheduler.inputs.toml_file import read_toml
 from scheduler.model.array import ArrayModel
-from scheduler.model.errors import InputError, Problem, ProblemList
+from scheduler.model.errors import ProblemList
 from scheduler.model.semester import CalendarEntry, Request, Semester
 from scheduler.model.targets import Targets
 
@@ -54,14 +54,7 @@ def load_semester(path: str | Path, array: ArrayModel | None) -> Semester:
     """Read and validate a semester file; every problem reported together (configuration
     names are checked only when the ``array`` could be read)."""
     src = str(path)
-    try:
-        data = tomllib.loads(Path(path).read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise InputError(Problem(src, "", "file not found")) from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(Problem(src, "", f"cannot read: {exc}")) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(Problem(src, "", f"not valid TOML: {exc}")) from None
+    data = read_toml(path)
     p = ProblemList(src)
     _table(data, "", _TOP, _TOP, p)
     sem = _table(data.get("semester", {}), "semester", _SEMESTER, _SEMESTER, p)
