@@ -23,6 +23,7 @@ from scheduler.model.plan import Plan, PlanSettings, PlanSummary
 from scheduler.queue.planner import plan_night
 from scheduler.queue.scoring import science_value
 from scheduler.queue.timing import brackets, time_sequence
+from scheduler.queue.value import ValueRule
 from scheduler.queue.visits import to_visits
 
 VALUE_TOL = 1e-6  # priority x hours
@@ -120,7 +121,8 @@ def test_brute_force_optimum_is_a_valid_plan(instance):
     case, settings, timed = instance["case"], instance["settings"], instance["timed"]
     br = brackets(timed, instance["q"])
     visits = to_visits(case.problem, timed, br)
-    assert science_value(visits, case.targets) == pytest.approx(instance["best"], abs=VALUE_TOL)
+    rule = ValueRule.of(case.targets, settings)
+    assert science_value(visits, rule) == pytest.approx(instance["best"], abs=VALUE_TOL)
     summary = PlanSummary("reference", 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0.0, 0, 0.0)
     assert case.problems(Plan(tuple(visits), (), summary), settings) == []
 
@@ -130,7 +132,7 @@ def test_optimiser_reaches_brute_force_optimum(instance):
     than it (the bounding model relaxes every real plan), and its plan verifies."""
     case, settings = instance["case"], instance["settings"]
     plan = plan_night(case.problem, settings, "optimize")
-    got = science_value(list(plan.visits), case.targets)
+    got = science_value(list(plan.visits), ValueRule.of(case.targets, settings))
     assert case.problems(plan, settings) == []
     assert plan.summary.bound is not None
     assert plan.summary.bound >= instance["best"] - VALUE_TOL

@@ -29,6 +29,7 @@ from scheduler.output.plan_document import plan_document
 from scheduler.queue.optimizer import OptimizerResult
 from scheduler.queue.planner import plan_night
 from scheduler.queue.scoring import science_value
+from scheduler.queue.value import ValueRule
 from scheduler.verify import verify_plan
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -104,7 +105,8 @@ def test_optimiser_is_no_worse_than_greedy_and_bounded(demo, default_run):
     inputs, ctx = demo
     plan = default_run
     summ = plan.summary
-    assert science_value(list(plan.visits), ctx.targets) >= summ.greedy_value - VALUE_TOL
+    rule = ValueRule.of(ctx.targets, PlanSettings())
+    assert science_value(list(plan.visits), rule) >= summ.greedy_value - VALUE_TOL
     assert summ.weighted_value >= summ.greedy_value - VALUE_TOL
     assert summ.bound is not None and summ.gap is not None
     assert summ.bound >= summ.objective - VALUE_TOL
@@ -253,8 +255,8 @@ FALLBACK_ROWS = [
 
 
 def test_optimiser_returning_nothing_falls_back_to_greedy(monkeypatch):
-    """When the optimiser returns no sequence, the plan is the greedy night and the
-    summary says so."""
+    """When the optimiser returns nothing better (here: an empty night), the plan is the
+    greedy night and the summary says so."""
     case = Case(ARRAY, FALLBACK_ROWS)
     s = PlanSettings(time_limit_s=RANDOM_LIMIT_S)
     greedy = plan_night(case.problem, s, "greedy")
@@ -262,7 +264,7 @@ def test_optimiser_returning_nothing_falls_back_to_greedy(monkeypatch):
 
     def nothing(*args, **kwargs):
         calls.append(args)
-        return OptimizerResult(None, {"status": "UNKNOWN", "solve_s": 0.0, "bound": None})
+        return OptimizerResult([], None, 0.0, None, "UNKNOWN", 0.0, 0)
 
     # plan_night imports optimize from scheduler.queue.optimizer at call time
     monkeypatch.setattr(scheduler.queue.optimizer, "optimize", nothing)
@@ -272,7 +274,7 @@ def test_optimiser_returning_nothing_falls_back_to_greedy(monkeypatch):
     assert [(v.id, v.start_s) for v in plan.visits] == [(v.id, v.start_s) for v in greedy.visits]
     assert plan.summary.solver.startswith("greedy")
     assert "nothing" in plan.summary.solver
-    assert plan.summary.report.status == "UNKNOWN"
+    assert plan.summary.report.bound_status == "UNKNOWN"
     assert case.problems(plan, s) == []
 
 

@@ -23,7 +23,8 @@ from scheduler.model.times import parse_utc
 KINDS = ("science", "calibrator")
 REQUIRED = ("name", "ra", "dec", "duration_min")
 KNOWN = REQUIRED + (
-    "kind", "program", "priority", "visits", "min_separation_min", "needs_calibrator",
+    "kind", "program", "priority", "visits", "min_visits", "min_separation_min",
+    "needs_calibrator",
     "mag", "diameter_mas", "pm_ra_mas_yr", "pm_dec_mas_yr", "window_start_utc",
     "window_end_utc",
 )  # fmt: skip
@@ -128,8 +129,8 @@ class _Rows:
         return v
 
 
-_NUMERIC = ("ra", "dec", "pm_ra", "pm_dec", "priority", "duration", "visits", "sep", "mag",
-            "diam", "ws", "we")  # fmt: skip
+_NUMERIC = ("ra", "dec", "pm_ra", "pm_dec", "priority", "duration", "visits", "min_visits",
+            "sep", "mag", "diam", "ws", "we")  # fmt: skip
 
 
 def _position(r: _Rows, i: int, out: dict[str, np.ndarray]) -> None:
@@ -154,6 +155,11 @@ def _visit_columns(r: _Rows, i: int, science: bool, out: dict[str, np.ndarray]) 
     out["visits"][i] = r.number("visits", i, 1.0, 1.0, 100.0)
     if out["visits"][i] != round(out["visits"][i]):
         r.p.add(r.where(i, "visits"), f"{r.get('visits', i)!r} is not a whole number")
+    out["min_visits"][i] = r.number("min_visits", i, out["visits"][i], 1.0, 100.0)
+    if out["min_visits"][i] != round(out["min_visits"][i]) or out["min_visits"][i] > out[
+            "visits"][i]:  # fmt: skip
+        r.p.add(r.where(i, "min_visits"), f"{r.get('min_visits', i)!r} is not a whole number "
+                f"from 1 to visits ({r.get('visits', i) or 1})")  # fmt: skip
     out["sep"][i] = r.number("min_separation_min", i, 0.0, 0.0, 24 * 60.0)
     out["mag"][i] = r.number("mag", i, math.nan, -30.0, 40.0)
     out["diam"][i] = r.number("diameter_mas", i, math.nan, 0.0, 1e6)
@@ -222,7 +228,8 @@ def parse_targets(frame: pd.DataFrame, source: str = "<targets>") -> Targets:
         pm_ra_rad_yr=out["pm_ra"] * MAS_TO_RAD, pm_dec_rad_yr=out["pm_dec"] * MAS_TO_RAD,
         is_science=science, program=tuple(r.get("program", i) for i in range(n)),
         priority=out["priority"], duration_s=out["duration"] * 60.0,
-        visits=out["visits"].astype(int), min_separation_s=out["sep"] * 60.0,
+        visits=out["visits"].astype(int), min_visits=np.nan_to_num(out["min_visits"], nan=1.0)
+        .astype(int), min_separation_s=out["sep"] * 60.0,
         needs_calibrator=needs & science, mag=out["mag"], diameter_rad=out["diam"] * MAS_TO_RAD,
         window_start_s=out["ws"], window_end_s=out["we"], extra=extra, source=source,
     )  # fmt: skip

@@ -16,10 +16,12 @@ from scheduler.model.targets import Kind
 class PlanSettings:
     """Rules of the queue (defaults documented in README.md).
 
-    ``carriage_weight`` is the objective's price of one second of carriage
-    repositioning, in priority x seconds of science: 1.0 means a second of carriage
-    travel weighs as much as one second of priority-1 science (small: a night's moves
-    add up to minutes, its science to hours).
+    Value rule: each science visit earns its target's priority (``value_per_hour``:
+    priority x hours on target instead), and only once its target has ``min_visits``
+    visits; with ``strict_priority`` a higher priority wins over any amount of lower
+    ones (priorities become lexicographic weights, see :mod:`scheduler.queue.value`).
+    ``carriage_weight`` is the objective's price of one hour of carriage repositioning,
+    in value units (small: it decides only between otherwise equal nights).
     """
 
     calibrator_gap_s: float = 3600.0
@@ -29,6 +31,8 @@ class PlanSettings:
     wavelength_m: float = 1.65e-6
     calibrator_copies: int = 3
     carriage_weight: float = 1.0
+    value_per_hour: bool = False
+    strict_priority: bool = False
     time_limit_s: float = 20.0
     seed: int = 0
     deterministic: bool = False
@@ -99,25 +103,29 @@ class Visit:
 
 @dataclass(frozen=True)
 class SolverReport:
-    """What the optimiser said: statuses, seconds spent, the planning model's own
-    objective and the bounding model's proven bound (priority x hours)."""
+    """What the optimiser said: its bounds of the night's value (the linear
+    programme's and the CP-SAT bounding model's, None when it had none), the bounding
+    model's status (OPTIMAL: proven; FEASIBLE: stopped at the limit) and seconds, and
+    how many routes the search timed."""
 
-    status: str | None = None
-    solve_s: float | None = None
-    model_objective: float | None = None
-    bound: float | None = None
+    lp_bound: float | None = None
+    model_bound: float | None = None
     bound_status: str | None = None
     bound_s: float | None = None
+    evaluations: int | None = None
 
 
 @dataclass(frozen=True)
 class PlanSummary:
     """The figures of a plan (README.md, *The night queue*, defines each).
 
-    Values are priority x hours; ``objective`` is the value less the carriage weight
-    times ``idle_carriage_s``; ``bound`` an upper bound of any plan's objective and
-    ``gap`` = (bound - objective) / bound; ``carriage_wait_s`` the time the array waits
-    for carriages beyond the telescope slews."""
+    ``weighted_value`` is what the plan earns under the value rule; ``objective`` that
+    less the carriage weight times the hours of carriage repositioning
+    (``idle_carriage_s``); ``bound`` a proven upper bound of any plan's value and
+    ``gap`` = (bound - value) / bound, with ``bound_status`` "optimal" when the bound is
+    proven to be the best value (the gap is then the whole distance from the best) or
+    "at limit" when the bounding model stopped at the time limit; ``carriage_wait_s``
+    the time the array waits for carriages beyond the telescope slews."""
 
     solver: str
     science_hours: float
@@ -131,6 +139,7 @@ class PlanSummary:
     wall_s: float
     bound: float | None = None
     gap: float | None = None
+    bound_status: str | None = None
     previous_value: float | None = None
     report: SolverReport = field(default_factory=SolverReport)
     verified: bool = False

@@ -29,7 +29,9 @@ class Targets:
     ``ra_rad``/``dec_rad`` are ICRS at epoch J2000.0; ``pm_ra_rad_yr`` includes the
     cos(dec) factor.  ``window_start_s``/``window_end_s`` are POSIX UTC seconds of a
     target's own time-critical window, NaN where it has none.  ``diameter_rad`` and
-    ``mag`` are NaN where not given.  ``extra`` keeps the catalog's other columns.
+    ``mag`` are NaN where not given.  A science target wants ``visits`` visits and earns
+    its value only once ``min_visits`` of them are made.  ``extra`` keeps the catalog's
+    other columns.
     """
 
     names: tuple[str, ...]
@@ -42,6 +44,7 @@ class Targets:
     priority: np.ndarray
     duration_s: np.ndarray
     visits: np.ndarray
+    min_visits: np.ndarray
     min_separation_s: np.ndarray
     needs_calibrator: np.ndarray
     mag: np.ndarray

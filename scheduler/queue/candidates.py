@@ -36,8 +36,9 @@ def suitable_calibrators(targets: Targets, longest_baseline_m: float,
 
 
 def build_candidates(targets: Targets, windows: list[TargetWindows], suits: np.ndarray,
-                     s: PlanSettings) -> list[Candidate]:  # fmt: skip
-    """Every science visit that could fit tonight, and copies of useful calibrators."""
+                     s: PlanSettings, per_visit: np.ndarray) -> list[Candidate]:  # fmt: skip
+    """Every science visit that could fit tonight (``per_visit[i]``: what one visit of
+    target i earns), and copies of useful calibrators."""
     out: list[Candidate] = []
     needed = suits[targets.needs_calibrator].any(axis=0)
     for i, w in enumerate(windows):
@@ -47,7 +48,7 @@ def build_candidates(targets: Targets, windows: list[TargetWindows], suits: np.n
             continue
         name = targets.names[i]
         if targets.is_science[i]:
-            value = float(targets.priority[i]) * d / 3600.0
+            value = float(per_visit[i])
             for k in range(1, int(targets.visits[i]) + 1):
                 out.append(Candidate(visit_id(name, Kind.SCIENCE, k), i, Kind.SCIENCE, k, d,
                                      value, starts))  # fmt: skip

@@ -1,13 +1,15 @@
 """Plan one night: windows, candidates, a sequence, exact times, the summary.
 
-:func:`plan_night` runs the greedy dispatcher, then (with ``solver="optimize"``) the
-CP-SAT optimiser warm-started from it, times the better sequence exactly and explains
-every science target left out.
+:func:`plan_night` builds the greedy night (what a planner does by hand), then with
+``solver="optimize"`` improves it with the search while the bounds are proven
+(:mod:`scheduler.queue.optimizer`), times the best sequence exactly and explains every
+science target left out.  The result is never worse than the greedy night.
 """
 
 from __future__ import annotations
 
 import time
+from collections.abc import Callable
 
 import numpy as np
 
@@ -19,105 +21,110 @@ from scheduler.queue.prepare import QueueInputs, prepare_queue
 from scheduler.queue.restart import restrict
 from scheduler.queue.scoring import (
     carriage_wait_s,
-    energy_bound,
     idle_carriage_s,
     objective,
     science_hours,
     science_value,
 )
-from scheduler.queue.timing import Timed, settle_sequence
+from scheduler.queue.timing import Sequence, Timed, settle_sequence
 from scheduler.queue.visits import to_visits
 
-RESERVE_S = 1.0  # of the time limit, kept for exact timing and verification
+RESERVE_S = 1.5  # of the time limit, kept for exact timing, verification and writing
 PREPARE_S = 1.0  # of the time limit, assumed spent before the optimiser in deterministic mode
+MIN_BUDGET_S = 0.3  # the optimiser always gets at least this
+
+Progress = Callable[[float, float | None], None]
 
 
-def _previous_order(q: QueueInputs, origin: Start, visits: list[Visit], timed: Timed
-                    ) -> tuple[list[Visit], Timed, float, bool]:  # fmt: skip
-    """The old plan's order where it still fits: (visits, timed, its value, chosen)."""
-    by_id = {c.id: c for c in q.candidates}
-    old = [(by_id[i], st) for i, st in origin.previous if i in by_id]
-    timed_p, br_p = settle_sequence(q, old, False, origin)
-    kept = to_visits(q.problem, timed_p, br_p, origin)
-    t, s = q.problem.targets, q.settings
-    better = objective(kept, t, s) >= objective(visits, t, s)
-    return (kept, timed_p, science_value(kept, t), True) if better else (
-        visits, timed, science_value(kept, t), False)  # fmt: skip
+def _done(origin: Start | None) -> dict[int, int] | None:
+    return dict(origin.done_count) if origin else None
 
 
-def _optimise(q: QueueInputs, timed: Timed, visits: list[Visit], started: float,
-              origin: Start | None) -> tuple[list[Visit], str, SolverReport]:  # fmt: skip
-    """Run the optimiser within what is left of the time limit; keep its plan when it
-    is at least as good.  Returns (visits, outcome, report)."""
-    from scheduler.queue.optimizer import optimize
+def _timed_visits(q: QueueInputs, seq: Sequence, origin: Start | None,
+                  compact: bool = True) -> tuple[list[Visit], Timed]:  # fmt: skip
+    timed, br = settle_sequence(q, seq, compact, origin)
+    return to_visits(q.problem, timed, br, origin), timed
 
-    s = q.settings
-    if s.deterministic:  # a fixed share, so that machine speed changes nothing
-        budget = s.time_limit_s - RESERVE_S - PREPARE_S
-    else:
-        budget = s.time_limit_s - (time.perf_counter() - started) - RESERVE_S
-    result = optimize(q, timed, budget, origin)
-    r = result.report
-    report = SolverReport(r.get("status"), r.get("solve_s"), r.get("model_objective"),
-                          r.get("bound"), r.get("bound_status"), r.get("bound_s"))  # fmt: skip
-    if result.sequence is None:
-        return visits, "optimiser returned nothing in time", report
-    timed_o, br_o = settle_sequence(q, result.sequence, origin=origin)
-    opt_visits = to_visits(q.problem, timed_o, br_o, origin)
-    t = q.problem.targets
-    if objective(opt_visits, t, s) > objective(visits, t, s) - 1e-9:
-        return opt_visits, "optimize", report
-    return visits, "optimiser found nothing better", report
+
+def _better(q: QueueInputs, a: list[Visit], b: list[Visit], origin: Start | None) -> bool:
+    """Whether plan ``a`` has a higher objective than ``b``."""
+    s, done = q.settings, _done(origin)
+    return objective(a, q.rule, s, done) > objective(b, q.rule, s, done) + 1e-9
+
+
+def _budget(settings: PlanSettings, started: float) -> float:
+    if settings.deterministic:  # a fixed share, so that machine speed changes nothing
+        return max(MIN_BUDGET_S, settings.time_limit_s - RESERVE_S - PREPARE_S)
+    return max(MIN_BUDGET_S, settings.time_limit_s - (time.perf_counter() - started) - RESERVE_S)
 
 
 def plan_night(problem: NightProblem, settings: PlanSettings, solver: str = "optimize",
-               started_s: float | None = None, origin: Start | None = None) -> Plan:  # fmt: skip
+               started_s: float | None = None, origin: Start | None = None,
+               progress: Progress | None = None) -> Plan:  # fmt: skip
     """Plan the night.  ``settings.time_limit_s`` counts from ``started_s``
     (``time.perf_counter()`` when the command began; now by default), and a reserve is
     kept for exact timing and verification after the optimiser stops.  With ``origin``
-    the queue restarts mid-night from that state (see :mod:`scheduler.queue.restart`),
-    warm started from ``origin.previous`` where it still fits."""
+    the queue restarts mid-night from that state (see :mod:`scheduler.queue.restart`);
+    the previous plan's remaining order is then tried as well."""
     t0 = time.perf_counter()
     started = t0 if started_s is None else started_s
     q = prepare_queue(problem, settings)
     if origin is not None:
         q = q.with_candidates(restrict(q.candidates, origin, problem.targets.min_separation_s))
-    timed, br = settle_sequence(q, greedy_sequence(q, origin), origin=origin)
-    greedy_visits = visits = to_visits(problem, timed, br, origin)
-    solver_name, previous_value = "greedy", None
+    seq = greedy_sequence(q, origin)
+    greedy_visits, _ = _timed_visits(q, seq, origin)
+    visits, name, previous_value = greedy_visits, "greedy", None
     if origin is not None and origin.previous:
-        visits, timed, previous_value, chosen = _previous_order(q, origin, visits, timed)
-        solver_name = "previous order" if chosen else solver_name
+        by_id = {c.id: c for c in q.candidates}
+        old = [(by_id[i], st) for i, st in origin.previous if i in by_id]
+        kept, _ = _timed_visits(q, old, origin, compact=False)
+        previous_value = science_value(kept, q.rule, _done(origin))
+        if _better(q, kept, visits, origin):
+            visits, name, seq = kept, "previous order", old
     report = SolverReport()
     if solver == "optimize":
-        visits, outcome, report = _optimise(q, timed, visits, started, origin)
-        solver_name = outcome if outcome == "optimize" else f"{solver_name} ({outcome})"
-    summary = _summary(q, visits, greedy_visits, solver_name, previous_value, report, solver,
-                       origin, time.perf_counter() - t0)  # fmt: skip
+        from scheduler.queue.optimizer import optimize
+
+        result = optimize(q, seq, _budget(settings, started), origin, progress)
+        found, _ = _timed_visits(q, result.sequence, origin)
+        if _better(q, found, visits, origin):
+            visits, name = found, "optimize"
+        else:
+            name = f"{name} (the search found nothing better)"
+        report = SolverReport(result.lp_bound, result.model_bound, result.bound_status,
+                              round(result.bound_s, 3), result.evaluations)  # fmt: skip
+    summary = _summary(q, visits, greedy_visits, name, previous_value, report, origin,
+                       time.perf_counter() - t0)  # fmt: skip
     return Plan(tuple(visits), tuple(_unscheduled(q, visits, origin)), summary)
 
 
-def _summary(q: QueueInputs, visits: list[Visit], greedy_visits: list[Visit], solver_name: str,
-             previous_value: float | None, report: SolverReport, solver: str,
-             origin: Start | None, wall_s: float) -> PlanSummary:  # fmt: skip
-    t, s = q.problem.targets, q.settings
-    obj = objective(visits, t, s)
-    bound = gap = None
-    if solver == "optimize":  # the energy bound is a second valid bound, sometimes tighter
-        night = q.problem.night
-        quick = energy_bound(q.candidates, q.problem.overheads,
-                             origin.t_s if origin else night.start_s, night.end_s)  # fmt: skip
-        bound = max(min(quick, report.bound if report.bound is not None else quick), obj)
-        gap = (bound - obj) / bound if bound > 0 else 0.0
+def _bound(report: SolverReport, value: float) -> tuple[float | None, float | None, str | None]:
+    """(bound, gap, status) from the solver's bounds; a plan that reaches the bound is
+    optimal whatever the model's status."""
+    known = [b for b in (report.lp_bound, report.model_bound) if b is not None]
+    if not known:
+        return None, None, None
+    bound = max(min(known), value)
+    gap = (bound - value) / bound if bound > 0 else 0.0
+    proven = report.bound_status == "OPTIMAL" or gap <= 1e-9
+    return bound, gap, "optimal" if proven else "at limit"
+
+
+def _summary(q: QueueInputs, visits: list[Visit], greedy_visits: list[Visit], name: str,
+             previous_value: float | None, report: SolverReport, origin: Start | None,
+             wall_s: float) -> PlanSummary:  # fmt: skip
+    done, s = _done(origin), q.settings
+    value = science_value(visits, q.rule, done)
+    bound, gap, status = _bound(report, value)
     return PlanSummary(
-        solver=solver_name, science_hours=round(science_hours(visits), 4),
-        weighted_value=round(science_value(visits, t), 4), objective=round(obj, 4),
-        greedy_value=round(science_value(greedy_visits, t), 4),
+        solver=name, science_hours=round(science_hours(visits), 4),
+        weighted_value=round(value, 4), objective=round(objective(visits, q.rule, s, done), 4),
+        greedy_value=round(science_value(greedy_visits, q.rule, done), 4),
         idle_carriage_s=round(idle_carriage_s(visits), 1),
         greedy_idle_carriage_s=round(idle_carriage_s(greedy_visits), 1),
         carriage_wait_s=round(carriage_wait_s(visits), 1), seed=s.seed, wall_s=round(wall_s, 3),
         bound=None if bound is None else round(bound, 4),
-        gap=None if gap is None else round(gap, 4),
+        gap=None if gap is None else round(gap, 4), bound_status=status,
         previous_value=None if previous_value is None else round(previous_value, 4),
         report=report,
     )  # fmt: skip
@@ -138,7 +145,7 @@ def _unscheduled(q: QueueInputs, visits: list[Visit],
             continue
         w = q.windows[i]
         if not w.start_windows(float(t.duration_s[i])):
-            why = f"never observable tonight for {t.duration_s[i] / 60:.0f} min"
+            why = "never observable tonight"
             if w.excluded:
                 why += f" ({words(w.main_reason(), problem.beams, problem.limits)})"
         elif t.needs_calibrator[i] and not any(j in cal_ok for j in np.flatnonzero(q.suits[i])):

@@ -12,6 +12,7 @@ from scheduler.model.plan import Candidate, PlanSettings
 from scheduler.model.problem import NightProblem
 from scheduler.queue.candidates import build_candidates, suitable_calibrators
 from scheduler.queue.grid import GeometryGrid, GridTransitions
+from scheduler.queue.value import ValueRule
 
 GRID_PAD_S = 20.0  # added to grid transitions, covering nearest-sample rounding
 
@@ -20,7 +21,7 @@ GRID_PAD_S = 20.0  # added to grid transitions, covering nearest-sample rounding
 class QueueInputs:
     """One night's queue problem: the night problem and settings, each target's
     windows, ``suits[i, j]`` when calibrator j suits science target i, the candidate
-    visits, and transition estimates from the one-minute grid."""
+    visits, transition estimates from the one-minute grid, and the value rule."""
 
     problem: NightProblem
     settings: PlanSettings
@@ -28,6 +29,7 @@ class QueueInputs:
     suits: np.ndarray
     candidates: tuple[Candidate, ...]
     transitions: GridTransitions
+    rule: ValueRule
 
     def with_candidates(self, candidates: list[Candidate] | tuple[Candidate, ...]) -> QueueInputs:
         return replace(self, candidates=tuple(candidates))
@@ -37,7 +39,8 @@ def prepare_queue(problem: NightProblem, settings: PlanSettings) -> QueueInputs:
     """The :class:`QueueInputs` of a night problem."""
     windows = observable_windows(problem)
     suits = suitable_calibrators(problem.targets, problem.beams.longest_baseline_m(), settings)
-    cands = build_candidates(problem.targets, windows, suits, settings)
+    rule = ValueRule.of(problem.targets, settings)
+    cands = build_candidates(problem.targets, windows, suits, settings, rule.per_visit)
     grid = GeometryGrid.build(problem)
     tr = GridTransitions(grid, problem.beams, problem.overheads, GRID_PAD_S)
-    return QueueInputs(problem, settings, tuple(windows), suits, tuple(cands), tr)
+    return QueueInputs(problem, settings, tuple(windows), suits, tuple(cands), tr, rule)

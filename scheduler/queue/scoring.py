@@ -1,17 +1,18 @@
-"""What a plan is worth: its science value, carriage time, objective, and an upper
-bound by time alone.  Values are priority x hours (README.md, *Value rule*)."""
+"""What a plan is worth: its science value (the value rule of :mod:`scheduler.queue.value`),
+carriage time, objective, and an upper bound by time alone."""
 
 from __future__ import annotations
 
 from scheduler.model.array import Overheads
 from scheduler.model.plan import Candidate, PlanSettings, Visit
-from scheduler.model.targets import Targets
+from scheduler.queue.value import ValueRule
 
 
-def science_value(visits: list[Visit], targets: Targets) -> float:
-    """Sum of priority x hours over scheduled science visits."""
-    return float(sum(targets.priority[v.target] * (v.end_s - v.start_s) / 3600.0
-                     for v in visits if v.is_science))  # fmt: skip
+def science_value(visits: list[Visit], rule: ValueRule,
+                  done: dict[int, int] | None = None) -> float:  # fmt: skip
+    """What the scheduled science visits earn under the value rule (``done``: visits per
+    target made before a replan, counted towards each target's minimum)."""
+    return rule.of_targets((v.target for v in visits if v.is_science), done)
 
 
 def science_hours(visits: list[Visit]) -> float:
@@ -29,10 +30,11 @@ def carriage_wait_s(visits: list[Visit]) -> float:
     return float(sum(max(0.0, v.carriage_s - v.slew_s) for v in visits))
 
 
-def objective(visits: list[Visit], targets: Targets, settings: PlanSettings) -> float:
-    """A timed plan's objective, priority x hours: science value minus the carriage
-    weight times the carriage repositioning time."""
-    return (science_value(visits, targets)
+def objective(visits: list[Visit], rule: ValueRule, settings: PlanSettings,
+              done: dict[int, int] | None = None) -> float:  # fmt: skip
+    """A timed plan's objective: science value minus the carriage weight times the
+    hours of carriage repositioning."""
+    return (science_value(visits, rule, done)
             - settings.carriage_weight * idle_carriage_s(visits) / 3600.0)  # fmt: skip
 
 

@@ -150,13 +150,14 @@ def settle_sequence(q: QueueInputs, seq: Sequence, compact: bool = True,
     best = _settle(q, seq, compact, origin)
     if compact:
         plain = _settle(q, seq, False, origin)
-        if _value(plain[0]) > _value(best[0]):
+        if _value(q, plain[0], origin) > _value(q, best[0], origin):
             best = plain
     return best
 
 
-def _value(timed: Timed) -> float:
-    return float(sum(c.value for c, _, _ in timed))
+def _value(q: QueueInputs, timed: Timed, origin: Start | None) -> float:
+    done = dict(origin.done_count) if origin else None
+    return q.rule.of_targets((c.target for c, _, _ in timed if c.is_science), done)
 
 
 def _settle(q: QueueInputs, seq: Sequence, compact: bool,
