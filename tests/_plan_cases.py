@@ -26,8 +26,8 @@ LIMITS = {"min_altitude_deg": 30.0, "max_altitude_deg": 87.0, "sun_altitude_max_
           "moon_separation_min_deg": 15.0}  # fmt: skip
 OVERHEADS = {"acquisition_s": 480.0, "slew_rate_deg_s": 1.5, "settle_s": 5.0}
 CONFIG = "test"
-COLUMNS = ("name", "ra", "dec", "kind", "priority", "duration_min", "visits",
-           "min_separation_min", "needs_calibrator", "mag", "diameter_mas",
+COLUMNS = ("name", "ra", "dec", "kind", "program", "priority", "duration_min", "visits",
+           "min_visits", "min_separation_min", "needs_calibrator", "mag", "diameter_mas",
            "window_start_utc", "window_end_utc")  # fmt: skip
 
 
@@ -61,11 +61,12 @@ class Case:
     """One invented night: array, catalog, night problem, and the queue inputs
     ``plan_night`` would build from them."""
 
-    def __init__(self, array_doc: dict, rows: list[dict]):
+    def __init__(self, array_doc: dict, rows: list[dict], config: str = CONFIG,
+                 date: dt.date = NIGHT_DATE):  # fmt: skip
         self.array = parse_array(array_doc, "<test array>")
         self.targets = parse_targets(targets_frame(rows), "<test targets>")
-        night = find_night(self.array, NIGHT_DATE)
-        self.problem = night_problem(self.array, self.array.beams(CONFIG), self.targets, night)
+        night = find_night(self.array, date)
+        self.problem = night_problem(self.array, self.array.beams(config), self.targets, night)
 
     def queue(self, settings: PlanSettings) -> QueueInputs:
         """The queue inputs exactly as ``plan_night`` builds them."""

@@ -53,7 +53,7 @@ def _run(args: argparse.Namespace, started: float) -> int:
 
     console = Console()
     run = _command(args.command)
-    result = run(args, started, console) if args.command == "fit" else run(args, started)
+    result = run(args, started, console)
     _show(result, console)
     try:
         write_all(result.outputs)

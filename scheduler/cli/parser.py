@@ -36,7 +36,10 @@ def _solver_options(sp: argparse.ArgumentParser, limit_s: float) -> None:
                     help="one optimiser worker under a deterministic limit: same plan "
                     "for the same inputs and seed")  # fmt: skip
     sp.add_argument("--solver", choices=("optimize", "greedy"), default="optimize",
-                    help="optimize: CP-SAT from the greedy night; greedy: by hand")  # fmt: skip
+                    help="optimize: search and proven bounds from the greedy night; greedy: "
+                    "by hand")  # fmt: skip
+    sp.add_argument("--quiet", action="store_true",
+                    help="no live line of the best value and bound while optimising")
 
 
 def _plan_commands(sub: argparse._SubParsersAction) -> None:

@@ -17,6 +17,8 @@ from typing import Any
 
 import numpy as np
 
+from scheduler.geometry.constraints import evaluate
+from scheduler.geometry.delay import line_paths
 from scheduler.inputs.plan_file import SCHEMA
 from scheduler.inputs.provenance import input_ref
 from scheduler.model.array import ArrayModel
@@ -27,6 +29,7 @@ from scheduler.replan.diff import plan_diff
 from scheduler.replan.situation import Situation
 
 ADVISORY = "Advisory only: every motion follows the site's interlocks and procedures."
+PROFILE_POINTS = 9  # samples of a done visit for its altitude range
 
 
 def rules_of(settings: PlanSettings) -> dict[str, float | int]:
@@ -99,21 +102,55 @@ def plan_document(problem: NightProblem, array: ArrayModel, plan: Plan,
     }  # fmt: skip
 
 
-def replan_document(problem: NightProblem, array: ArrayModel, plan: Plan, settings: PlanSettings,
-                    origin: Start, old: dict[str, Any], sit: Situation,
-                    plan_path: str) -> dict[str, Any]:  # fmt: skip
-    """The replan's document: the plan schema plus ``replanned_from``, ``done`` (with
-    their logged times), ``out``, ``closures``, ``start_state`` and ``diff``."""
-    doc = plan_document(problem, array, plan, settings)
+def _carriages_at(problem: NightProblem, entry: dict[str, Any], start_s: float,
+                  end_s: float) -> dict[str, Any]:  # fmt: skip
+    """Altitudes and carriage paths of a done visit at the times it was logged: the
+    common constant K it was planned with, moved just enough to stay in range."""
+    beams, lines = problem.beams, problem.beams.line_names
+    i = problem.targets.index(entry["target"])
+    t = np.linspace(start_s, end_s, PROFILE_POINTS)
+    ev = evaluate(problem, np.full(t.shape, i), t)
+    planned = evaluate(problem, np.array([i]), np.array([float(entry["start_s"])]))
+    known = [k for k, ln in enumerate(lines) if ln in entry["opd_start_m"]]
+    x_planned = np.array([entry["opd_start_m"][lines[k]] for k in known])
+    implied = x_planned - planned.pds_m[known, 0] + beams.path_m[known]
+    k_m = float(np.mean(implied)) if len(known) else 0.0
+    out: dict[str, Any] = {"altitude_deg": [round(float(np.degrees(a)), 3)
+                                            for a in (ev.alt_rad.min(), ev.alt_rad.max())]}
+    for key, col in (("opd_start_m", 0), ("opd_end_m", -1)):
+        k = float(np.clip(k_m, ev.span.low_m[col], max(ev.span.low_m[col], ev.span.high_m[col])))
+        x = line_paths(beams, ev.pds_m[:, col], k)
+        out[key] = {ln: round(float(v), 6) for ln, v in zip(lines, x, strict=True)}
+    return out
+
+
+def done_entries(problem: NightProblem, old: dict[str, Any],
+                 sit: Situation) -> list[dict[str, Any]]:  # fmt: skip
+    """The done visits with their logged times, altitudes and carriage paths recomputed
+    at those times (``problem`` holds every line of the configuration)."""
     known = {v["id"]: v for v in old["visits"] + old.get("done", [])}
     done = []
     for vid, at in sorted(sit.done.items(), key=lambda kv: kv[1] or 0.0):
         v = dict(known[vid])
-        if at is not None:
+        if at is not None and abs(at - float(v["end_s"])) > 0.0005:
             length = v["end_s"] - v["start_s"]
-            v.update(end_s=round(at, 3), start_s=round(at - length, 3), end_utc=iso_utc_ms(at),
-                     start_utc=iso_utc_ms(at - length))  # fmt: skip
+            start = at - length
+            v.update(_carriages_at(problem, v, start, at))
+            v.update(end_s=round(at, 3), start_s=round(start, 3), end_utc=iso_utc_ms(at),
+                     start_utc=iso_utc_ms(start))  # fmt: skip
         done.append(v)
+    return done
+
+
+def replan_document(problem: NightProblem, array: ArrayModel, plan: Plan, settings: PlanSettings,
+                    origin: Start, old: dict[str, Any], sit: Situation, plan_path: str,
+                    done_problem: NightProblem | None = None) -> dict[str, Any]:  # fmt: skip
+    """The replan's document: the plan schema plus ``replanned_from``, ``done`` (with
+    their logged times; ``done_problem``, the night with every line of the
+    configuration, recomputes them), ``out``, ``closures``, ``start_state`` and
+    ``diff``."""
+    doc = plan_document(problem, array, plan, settings)
+    done = done_entries(done_problem or problem, old, sit)
     lines = problem.beams.line_names
     opd = None
     if origin.opd_m is not None:

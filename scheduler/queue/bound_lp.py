@@ -78,18 +78,81 @@ def _brackets(lp: pywraplp.Solver, q: QueueInputs, sci: list[Candidate], y: dict
                 ct.SetCoefficient(z[j], -k[j])
 
 
+def min_overlap(first_s: float, last_s: float, length_s: float, a: float, b: float) -> float:
+    """The least a visit of ``length_s`` starting anywhere in [first_s, last_s] must
+    overlap the stretch [a, b]: as early as it can, or as late as it can, whichever
+    overlaps less (energetic reasoning, a standard argument of scheduling)."""
+    early = max(0.0, min(first_s + length_s, b) - max(first_s, a))
+    late = max(0.0, min(last_s + length_s, b) - max(last_s, a))
+    return min(early, late, length_s, b - a)
+
+
 def _stretches(lp: pywraplp.Solver, sci: list[Candidate], y: dict[str, object], start: float,
                end: float, tau: float) -> None:  # fmt: skip
-    span = {c.id: (min(a for a, _ in c.starts), max(b for _, b in c.starts) + c.duration_s)
+    """Over every stretch between edges, the science visits' least overlap with it (each
+    with its transition before) fits into it."""
+    span = {c.id: (min(a for a, _ in c.starts) - tau, max(b for _, b in c.starts))
             for c in sci}  # fmt: skip
     edges = list(np.arange(start, end, STRETCH_S)) + [end]
     for i, a in enumerate(edges):
         for b in edges[i + 1:]:
-            inside = [c for c in sci if span[c.id][0] >= a and span[c.id][1] <= b]
-            if inside and (a > start or b < end):
-                ct = lp.Constraint(-lp.infinity(), (b - a) + tau)
-                for c in inside:
-                    ct.SetCoefficient(y[c.id], c.duration_s + tau)
+            if a <= start and b >= end:
+                continue
+            terms = [(c, min_overlap(*span[c.id], c.duration_s + tau, a, b)) for c in sci]
+            terms = [(c, w) for c, w in terms if w > 0.0]
+            if terms:
+                ct = lp.Constraint(-lp.infinity(), b - a)
+                for c, w in terms:
+                    ct.SetCoefficient(y[c.id], w)
+
+
+def _groups(q: QueueInputs, sci: list[Candidate], cals: dict[int, list[Candidate]]
+            ) -> list[tuple[list[Candidate], list[int]]]:  # fmt: skip
+    """Science visits that need calibrators and the calibrator targets that suit them,
+    in groups that share none (connected parts of the suits graph)."""
+    needs = [c for c in sci if q.problem.targets.needs_calibrator[c.target]]
+    parent = {j: j for j in cals}
+
+    def root(j: int) -> int:
+        while parent[j] != j:
+            parent[j] = parent[parent[j]]
+            j = parent[j]
+        return j
+
+    for c in needs:
+        js = [int(j) for j in np.flatnonzero(q.suits[c.target]) if int(j) in cals]
+        for j in js[1:]:
+            parent[root(j)] = root(js[0])
+    groups: dict[int, tuple[list[Candidate], list[int]]] = {}
+    for j in cals:
+        groups.setdefault(root(j), ([], []))[1].append(j)
+    for c in needs:
+        js = [int(j) for j in np.flatnonzero(q.suits[c.target]) if int(j) in cals]
+        if js:
+            groups[root(js[0])][0].append(c)
+    return [g for g in groups.values() if g[0]]
+
+
+def _chain_ends(lp: pywraplp.Solver, q: QueueInputs, sci: list[Candidate],
+                cals: dict[int, list[Candidate]], y: dict[str, object], z: dict[int, object],
+                k: dict[int, int], opened_before: bool) -> None:  # fmt: skip
+    """In each group, every bracketed science visit lies between two of the group's
+    calibrator visits, at most k of them between two consecutive ones (those start
+    within the gap after the first): calibrator visits >= science / k + 1 (no + 1 when
+    calibrators done before a replan may open the first bracket)."""
+    for group, js in _groups(q, sci, cals):
+        most = max(k[j] for j in js)
+        used = lp.NumVar(0, 1, "")
+        for c in group:
+            ct = lp.Constraint(0, lp.infinity())
+            ct.SetCoefficient(used, 1)
+            ct.SetCoefficient(y[c.id], -1)
+        ct = lp.Constraint(0, lp.infinity())  # sum z - sum y / k - used >= 0
+        for j in js:
+            ct.SetCoefficient(z[j], 1)
+        for c in group:
+            ct.SetCoefficient(y[c.id], -1.0 / most)
+        ct.SetCoefficient(used, 0.0 if opened_before else -1.0)
 
 
 def lp_bound(q: QueueInputs, origin: Start | None = None) -> float:
@@ -102,7 +165,9 @@ def lp_bound(q: QueueInputs, origin: Start | None = None) -> float:
     lp = pywraplp.Solver.CreateSolver("GLOP")
     y = {c.id: lp.NumVar(0, 1, c.id) for c in sci}
     z = {j: lp.NumVar(0, len(cs), f"cal_{j}") for j, cs in cals.items()}
-    _brackets(lp, q, sci, y, z, _per_calibrator(q, sci, cals, tau))
+    k = _per_calibrator(q, sci, cals, tau)
+    _brackets(lp, q, sci, y, z, k)
+    _chain_ends(lp, q, sci, cals, y, z, k, bool(origin and origin.fixed))
     whole = lp.Constraint(-lp.infinity(), night.end_s - start)
     for c in sci:
         whole.SetCoefficient(y[c.id], c.duration_s + tau)

@@ -38,6 +38,17 @@ class GeometryGrid:
         return cls(t, ev.alt_rad, ev.az_rad, ev.pds_m, ev.span.low_m + m, ev.span.high_m - m,
                    ev.ok)  # fmt: skip
 
+    def __post_init__(self) -> None:
+        # plain floats for column_of (frozen dataclass: set once here)
+        object.__setattr__(self, "_t0", float(self.t_s[0]))
+        object.__setattr__(self, "_step", float(self.t_s[1] - self.t_s[0]))
+        object.__setattr__(self, "_last", len(self.t_s) - 1)
+
+    def column_of(self, t_s: float) -> int:
+        """Nearest sample index of one time (plain Python: the search asks often)."""
+        k = int(round((t_s - self._t0) / self._step))  # type: ignore[attr-defined]
+        return min(max(k, 0), self._last)  # type: ignore[attr-defined]
+
     def column(self, t_s: np.ndarray | float) -> np.ndarray:
         """Nearest sample index of times ``t_s``."""
         step = self.t_s[1] - self.t_s[0]

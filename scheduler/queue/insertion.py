@@ -27,6 +27,8 @@ PER_TARGET = 3  # places offered per target (the best guesses), so that one targ
 #                 whose guesses all fail cannot hide the others
 PARTIAL_CREDIT = 0.5  # guide value of a visit that does not yet complete its target
 SLACK_TOLERANCE_S = 600.0  # estimates are rough: moves a little beyond the slack are tried
+NEAR = 4  # calibrator visits looked at on each side of a place (the gap is short)
+CAL_OPTIONS = 3  # calibrator targets considered per science target, nearest first
 NO = np.inf
 
 
@@ -136,6 +138,46 @@ def candidate_moves(night: Night, route: Route, counts: Counter[int],
     return moves
 
 
+def _near(route: Route, night: Night, P: int) -> tuple[np.ndarray, np.ndarray]:
+    """For every place, the calibrator visits just before it and just after it, as
+    indices into :func:`_cal_state`'s arrays (-1: none); done calibrators count as
+    before every place."""
+    cal_pos = [k for k, i in enumerate(route.targets) if not night.science[i]]
+    fixed = list(range(len(cal_pos), len(cal_pos) + len(night.fixed_cals)))
+    before = np.full((P, NEAR + len(fixed)), -1)
+    after = np.full((P, NEAR), -1)
+    for p in range(P):
+        prior = [j for j, k in enumerate(cal_pos) if k < p][-NEAR:] + fixed
+        later = [j for j, k in enumerate(cal_pos) if k >= p][:NEAR]
+        before[p, :len(prior)] = prior
+        after[p, :len(later)] = later
+    return before, after
+
+
+def _options(night: Night, sci: np.ndarray, counts: Counter[int]) -> np.ndarray:
+    """(m, CAL_OPTIONS) calibrator targets with copies left that suit each science
+    target, nearest on the sky first (-1: none)."""
+    rank = night.cal_rank[sci]  # (m, R)
+    left = np.zeros(night.cal_rank.shape[0] + 1, bool)  # index -1 (padding) stays False
+    for j, allowed in night.allowed.items():
+        if not night.science[j] and counts.get(j, 0) < allowed:
+            left[j] = True
+    ok = left[rank]
+    order = np.argsort(~ok, axis=1, kind="stable")[:, :CAL_OPTIONS]
+    picked = np.take_along_axis(rank, order, 1)
+    return np.where(np.take_along_axis(ok, order, 1), picked, -1)
+
+
+def _covered(suits: np.ndarray, near: np.ndarray, ct: np.ndarray,
+             ok_time: np.ndarray) -> np.ndarray:  # fmt: skip
+    """(P, m): some calibrator of ``near`` (P, K) suits the target and ``ok_time``
+    (P, m, K) holds."""
+    valid = near >= 0
+    targets = ct[np.maximum(near, 0)]  # (P, K)
+    fit = suits[:, targets].transpose(1, 0, 2)  # (P, m, K)
+    return (fit & valid[:, None, :] & ok_time).any(axis=2)
+
+
 def _brackets(night: Night, route: Route, pl: _Places, sci: np.ndarray, arrive: np.ndarray,
               dur: np.ndarray, counts: Counter[int]
               ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:  # fmt: skip
@@ -144,42 +186,36 @@ def _brackets(night: Night, route: Route, pl: _Places, sci: np.ndarray, arrive: 
     est, acq, gap = night.oracle.estimate, night.q.problem.overheads.acquisition_s, night.gap_s
     suits = night.q.suits[sci]  # (m, N)
     needs = np.array([night.needs_cal[int(i)] for i in sci])
-    ct, cs, ce, ck = _cal_state(night, route)
-    P = len(pl.prev)
-    place = np.arange(P)[:, None, None]
-    fits = suits[None, :, ct] if len(ct) else np.zeros((P, len(sci), 0), bool)
-    before = (fits & (ck[None, None, :] < place) & (arrive[:, :, None] - ce[None, None, :] >= 0)
-              & (arrive[:, :, None] - ce[None, None, :] <= gap)).any(axis=2)  # fmt: skip
-    end = arrive + dur[None, :]
-    after = (fits & (ck[None, None, :] >= place) & (cs[None, None, :] - end[:, :, None] >= 0)
-             & (cs[None, None, :] - end[:, :, None] <= gap)).any(axis=2)  # fmt: skip
-    cals = np.array([j for j in night.starts if not night.science[j]
-                     and counts.get(j, 0) < night.allowed[j]], int)  # fmt: skip
+    ct, cs, ce, _ = _cal_state(night, route)
     into = _trans(est, pl.prev[:, None], sci[None, :], acq)
     wait = arrive - (pl.free_from[:, None] + into)  # idle before its window opens
     base = (into + wait + dur[None, :] + _trans(est, sci[None, :], pl.nxt[:, None], acq)
             - _trans(est, pl.prev, pl.nxt, acq)[:, None])  # fmt: skip
-    none = np.full(base.shape, -1)
-    if not len(cals):
-        return np.where(needs[None, :] & ~(before & after), NO, base), none, none
-    cdur = np.array([night.duration_s[j] for j in cals])
-    usable = suits[:, cals]  # (m, k)
-    cost_b = (_trans(est, pl.prev[:, None, None], cals[None, None, :], acq) + cdur
-              + est[np.ix_(cals, sci)].T[None] - _trans(est, pl.prev[:, None], sci[None, :], acq
-                                                        )[:, :, None])  # fmt: skip
-    cost_b = np.where(usable[None], cost_b, NO)
-    cost_a = (est[np.ix_(sci, cals)][None] + cdur + _trans(est, cals[None, None, :],
-              pl.nxt[:, None, None], acq) - _trans(est, sci[None, :], pl.nxt[:, None], acq
-                                                   )[:, :, None])  # fmt: skip
-    cost_a = np.where(usable[None], cost_a, NO)
+    near_b, near_a = _near(route, night, len(pl.prev))
+    if len(ct):
+        since = arrive[:, :, None] - ce[np.maximum(near_b, 0)][:, None, :]
+        before = _covered(suits, near_b, ct, (since >= 0) & (since <= gap))
+        until = cs[np.maximum(near_a, 0)][:, None, :] - (arrive + dur[None, :])[:, :, None]
+        after = _covered(suits, near_a, ct, (until >= 0) & (until <= gap))
+    else:
+        before = after = np.zeros(base.shape, bool)
+    opts = _options(night, sci, counts)  # (m, C)
+    has = opts >= 0
+    o = np.maximum(opts, 0)
+    cdur = np.array([night.duration_s.get(int(j), 0.0) for j in o.ravel()]).reshape(o.shape)
+    cost_b = (_trans(est, pl.prev[:, None, None], o[None], acq) + cdur[None]
+              + est[o, sci[:, None]][None] - into[:, :, None])  # (P, m, C)
+    cost_a = (est[sci[:, None], o][None] + cdur[None] + _trans(est, o[None], pl.nxt[:, None, None],
+              acq) - _trans(est, sci[None, :], pl.nxt[:, None], acq)[:, :, None])  # fmt: skip
+    cost_b = np.where(has[None], cost_b, NO)
+    cost_a = np.where(has[None], cost_a, NO)
     kb, ka = cost_b.argmin(axis=2), cost_a.argmin(axis=2)
-    add_b = np.where(needs[None, :] & ~before, np.take_along_axis(cost_b, kb[..., None], 2)[..., 0],
-                     0.0)  # fmt: skip
-    add_a = np.where(needs[None, :] & ~after, np.take_along_axis(cost_a, ka[..., None], 2)[..., 0],
-                     0.0)  # fmt: skip
-    block_b = np.where(needs[None, :] & ~before, cals[kb], -1)
-    block_a = np.where(needs[None, :] & ~after, cals[ka], -1)
-    return base + add_b + add_a, block_b, block_a
+    need_b, need_a = needs[None, :] & ~before, needs[None, :] & ~after
+    add_b = np.where(need_b, np.take_along_axis(cost_b, kb[..., None], 2)[..., 0], 0.0)
+    add_a = np.where(need_a, np.take_along_axis(cost_a, ka[..., None], 2)[..., 0], 0.0)
+    pick_b = np.take_along_axis(np.broadcast_to(opts[None], cost_b.shape), kb[..., None], 2)[..., 0]
+    pick_a = np.take_along_axis(np.broadcast_to(opts[None], cost_a.shape), ka[..., None], 2)[..., 0]
+    return (base + add_b + add_a, np.where(need_b, pick_b, -1), np.where(need_a, pick_a, -1))
 
 
 def apply_best(night: Night, route: Route, counts: Counter[int],

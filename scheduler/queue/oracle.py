@@ -34,7 +34,7 @@ class Oracle:
     def total(self, ia: int, ta: float, ib: int, tb: float) -> float:
         """Seconds needed from target ``ia`` ending at ``ta`` to ``ib`` starting at
         ``tb`` (slew or carriage move, then acquisition; grid pad included)."""
-        key = (ia, int(self.grid.column(ta)), ib, int(self.grid.column(tb)))
+        key = (ia, self.grid.column_of(ta), ib, self.grid.column_of(tb))
         got = self._memo.get(key)
         if got is None:
             self.calls += 1
@@ -48,7 +48,7 @@ class Oracle:
         over = self.q.problem.overheads
         if self.origin is None:
             return over.acquisition_s
-        key = (ib, int(self.grid.column(tb)))
+        key = (ib, self.grid.column_of(tb))
         got = self._first.get(key)
         if got is None:
             got = float(from_origin(self.q.problem, self.origin, ib, tb).total_s) + ORIGIN_PAD_S

@@ -40,6 +40,7 @@ class Night:
     last_end: dict[int, float]  # target -> end of its last done visit
     fixed_cals: tuple[tuple[int, float, float], ...]  # done calibrators (target, start, end)
     gap_s: float
+    cal_rank: np.ndarray  # (N, R) per target, suitable calibrator targets nearest first, -1 pad
 
     @classmethod
     def of(cls, q: QueueInputs, oracle: Oracle, origin: Start | None) -> Night:
@@ -59,9 +60,10 @@ class Night:
                    {i: bool(t.needs_calibrator[i]) for i in idx}, allowed,
                    dict(origin.done_count) if origin else {},
                    dict(origin.last_end) if origin else {}, fixed,
-                   q.settings.calibrator_gap_s)  # fmt: skip
+                   q.settings.calibrator_gap_s, _cal_rank(q, oracle, allowed))  # fmt: skip
 
     def earliest(self, target: int, t_s: float) -> float | None:
+        """The first allowed start of ``target`` at or after ``t_s``."""
         for a, b in self.starts[target]:
             if t_s <= b:
                 return max(a, t_s)
@@ -73,6 +75,22 @@ class Night:
             if a <= start_s <= b:
                 return b
         return start_s
+
+
+def _cal_rank(q: QueueInputs, oracle: Oracle, allowed: dict[int, int]) -> np.ndarray:
+    """Per catalog target, the calibrator targets of the pool that suit it, nearest on
+    the sky first, padded with -1."""
+    pool = np.array(sorted(j for j in allowed if not q.problem.targets.is_science[j]), int)
+    n = len(q.problem.targets)
+    rows = []
+    for i in range(n):
+        fit = pool[q.suits[i, pool]] if len(pool) else pool
+        rows.append(fit[np.argsort(oracle.estimate[fit, i], kind="stable")])
+    width = max([len(r) for r in rows] + [1])
+    out = np.full((n, width), -1)
+    for i, r in enumerate(rows):
+        out[i, :len(r)] = r
+    return out
 
 
 @dataclass

@@ -26,13 +26,15 @@ from scheduler.replan.situation import Situation, origin_of, read_situation
 @dataclass(frozen=True)
 class Replan:
     """A replan's inputs: the array, the night problem of what is left (lines out
-    removed), the restart state, the previous plan document and the situation."""
+    removed), the restart state, the previous plan document, the situation, and the
+    night with every line of the configuration (for the visits already done)."""
 
     array: ArrayModel
     problem: NightProblem
     origin: Start
     previous: dict[str, Any]
     situation: Situation
+    full: NightProblem
 
 
 def _source(doc: dict[str, Any], plan_path: str, key: str, given: str | None,
@@ -85,4 +87,6 @@ def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | 
         raise InputError(Problem(log_path, "", f"with {sorted(sit.out)} out, fewer than two "
                                  "delay lines are left: no baseline to observe with"))  # fmt: skip
     problem = night_problem(array, beams, targets, night)
-    return Replan(array, problem, origin_of(problem, doc, sit), doc, sit)
+    full = night_problem(array, array.beams(doc["configuration"]), targets, night) if sit.out \
+        else problem  # fmt: skip
+    return Replan(array, problem, origin_of(problem, doc, sit), doc, sit, full)

@@ -13,7 +13,7 @@ import numpy as np
 
 from scheduler.model.plan import Plan, PlanSummary
 from scheduler.model.problem import NightProblem
-from scheduler.model.times import hhmm, hours_label
+from scheduler.model.times import hhmm, hours_label, parse_utc
 from scheduler.views.timeline_view import NightStrip, TimelineView, VisitRow
 
 
@@ -22,11 +22,12 @@ def timeline_view(ctx: NightProblem, plan: Plan, doc: dict[str, Any]) -> Timelin
     which supplies the carriage positions and the summary."""
     night, t = ctx.night, ctx.targets
     lines = tuple(ctx.beams.line_names)
-    numbers = {v.id: k + 1 for k, v in enumerate(plan.visits)}
-    rows = []
+    rows = _done_rows(ctx, doc, lines)
+    first = len(rows) + 1
+    numbers = {v.id: first + k for k, v in enumerate(plan.visits)}
     for k, (v, d) in enumerate(zip(plan.visits, doc["visits"], strict=True)):
         rows.append(VisitRow(
-            number=k + 1, utc_start=hhmm(v.start_s), utc_end=hhmm(v.end_s),
+            number=first + k, utc_start=hhmm(v.start_s), utc_end=hhmm(v.end_s),
             lst_start=hours_label(float(night.lst_rad(v.start_s))), target=t.names[v.target],
             kind=t.kind(v.target), program=t.program[v.target],
             alt_deg=(float(d["altitude_deg"][0]), float(d["altitude_deg"][1])),
@@ -34,13 +35,44 @@ def timeline_view(ctx: NightProblem, plan: Plan, doc: dict[str, Any]) -> Timelin
             gap_s=v.transition_s, opd_start_m=tuple(float(d["opd_start_m"][ln]) for ln in lines),
             serves=tuple(numbers[c] for c in v.calibrates if c in numbers),
         ))  # fmt: skip
-    strip = NightStrip(night.start_s, night.end_s, _hour_marks(ctx), _spans(ctx, plan))
+    strip = NightStrip(night.start_s, night.end_s, _hour_marks(ctx), _spans(ctx, plan, doc))
     title = (
         f"Night of {night.date} - configuration {ctx.beams.configuration} - dark "
         f"{hhmm(night.start_s)} to {hhmm(night.end_s)} UTC ({night.duration_s / 3600.0:.1f} h)"
     )
     return TimelineView(title, strip, rows, lines, _summary(plan.summary, plan),
-                        _grouped(plan.unscheduled))  # fmt: skip
+                        _grouped(plan.unscheduled), _notes(doc))  # fmt: skip
+
+
+def _done_rows(ctx: NightProblem, doc: dict[str, Any], lines: tuple[str, ...]) -> list[VisitRow]:
+    """A replan's done visits at their logged times, first in the table."""
+    rows = []
+    for k, d in enumerate(doc.get("done", [])):
+        start, end = parse_utc(d["start_utc"]), parse_utc(d["end_utc"])
+        rows.append(VisitRow(
+            number=k + 1, utc_start=hhmm(start), utc_end=hhmm(end),
+            lst_start=hours_label(float(ctx.night.lst_rad(start))), target=d["target"],
+            kind=d["kind"], program=d["program"],
+            alt_deg=(float(d["altitude_deg"][0]), float(d["altitude_deg"][1])),
+            slew_s=float("nan"), carriage_s=float("nan"), acquisition_s=float("nan"),
+            gap_s=float("nan"), opd_start_m=tuple(float(d["opd_start_m"].get(ln, float("nan")))
+                                                  for ln in lines),
+            serves=(), done=True,
+        ))  # fmt: skip
+    return rows
+
+
+def _notes(doc: dict[str, Any]) -> tuple[str, ...]:
+    """What a replan started from: when, what is out, the closures."""
+    if "replanned_from" not in doc:
+        return ()
+    notes = [f"replanned at {doc['replanned_from']['now_utc'][11:16]} UTC; "
+             f"{len(doc.get('done', []))} visits done before"]
+    if doc.get("out"):
+        notes.append("out: " + ", ".join(doc["out"]))
+    if doc.get("closures"):
+        notes.append("closed: " + ", ".join(f"{a[11:16]}–{b[11:16]}" for a, b in doc["closures"]))
+    return tuple(notes)
 
 
 def _hour_marks(ctx: NightProblem) -> tuple[tuple[float, str, str], ...]:
@@ -51,13 +83,26 @@ def _hour_marks(ctx: NightProblem) -> tuple[tuple[float, str, str], ...]:
     return tuple((float(h), hhmm(h), hours_label(float(night.lst_rad(h)))) for h in hours)
 
 
-def _spans(ctx: NightProblem, plan: Plan) -> tuple[tuple[float, float, str], ...]:
+def _past(doc: dict[str, Any]) -> list[tuple[float, float, str]]:
+    """A replan's done visits and closures as spans (they win over the plan's)."""
+    spans = [(parse_utc(d["start_utc"]), parse_utc(d["end_utc"]), "done")
+             for d in doc.get("done", [])]  # fmt: skip
+    spans += [(parse_utc(a), parse_utc(b), "closed") for a, b in doc.get("closures", [])]
+    return spans
+
+
+def _spans(ctx: NightProblem, plan: Plan,
+           doc: dict[str, Any]) -> tuple[tuple[float, float, str], ...]:  # fmt: skip
     """The night cut into (start, end, kind) spans: ``science`` and ``calibrator``
     visits, the ``transition`` before each visit (the longer of slew and carriage move,
     then acquisition, right after the previous visit; for the first visit its
-    acquisition) and ``idle`` time in between."""
-    out = []
+    acquisition) and ``idle`` time in between; for a replan also the ``done`` visits and
+    the ``closed`` stretches."""
+    out = _past(doc)
     cursor = ctx.night.start_s
+    if "start_state" in doc:
+        cursor = max(cursor, parse_utc(doc["start_state"]["utc"]))
+        out.append((ctx.night.start_s, cursor, "idle"))
     for k, v in enumerate(plan.visits):
         need = max(v.slew_s, v.carriage_s) + v.acquisition_s
         if k == 0:

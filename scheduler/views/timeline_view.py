@@ -26,8 +26,10 @@ GLYPHS = {
     "calibrator": ("▒", "cyan", "calibrator"),
     "transition": ("▸", "yellow", "transition"),
     "idle": ("·", "grey50", "idle"),
+    "done": ("▪", "grey62", "done"),
+    "closed": ("×", "red", "closed"),
 }
-PRIORITY = ("science", "calibrator", "transition", "idle")  # wins ties in a cell
+PRIORITY = ("closed", "done", "science", "calibrator", "transition", "idle")  # wins ties
 LABEL_W = 4  # "UTC " before the strip
 WIDE_W = 100  # consoles at least this wide put reasons beside the unscheduled targets
 
@@ -62,6 +64,7 @@ class VisitRow:
     gap_s: float
     opd_start_m: tuple[float, ...]
     serves: tuple[int, ...]  # numbers of the science visits a calibrator brackets
+    done: bool = False  # a replan's visit already done (times logged; no transition)
 
 
 class TimelineView:
@@ -70,16 +73,19 @@ class TimelineView:
     def __init__(
         self, title: str, strip: NightStrip, rows: list[VisitRow], lines: tuple[str, ...],
         summary: tuple[tuple[str, str], ...], unscheduled: tuple[tuple[str, tuple[str, ...]], ...],
+        notes: tuple[str, ...] = (),
     ):  # fmt: skip
         self.title, self.strip, self.rows, self.lines = title, strip, list(rows), tuple(lines)
-        self.summary, self.unscheduled = summary, unscheduled
+        self.summary, self.unscheduled, self.notes = summary, unscheduled, notes
 
     def __rich_console__(self, console, options):
         width = options.max_width
         yield Text(self.title, style="bold")
+        for note in self.notes:
+            yield Text(note, style="yellow")
         yield Text()
         yield from _strip_lines(self.strip, self.rows, max(12, width - LABEL_W))
-        yield _legend()
+        yield _legend({kind for _, _, kind in self.strip.spans})
         yield Text()
         if self.rows:
             table, note = _visit_table(self.rows, self.lines, width)
@@ -125,7 +131,7 @@ def _cells(axis: TimeAxis, spans) -> list[str]:
     shown = [_winner(cv) for cv in cover]
     owner = [None] * axis.cells
     for a, b, kind in spans:
-        if kind in ("science", "calibrator"):
+        if kind in ("science", "calibrator", "done"):
             cells = range(axis.cell_of(a), axis.cell_of(b) + 1)
             if not any(shown[c] == kind for c in cells):
                 mid = axis.cell_of(0.5 * (a + b))
@@ -145,7 +151,7 @@ def _strip_lines(strip: NightStrip, rows: list[VisitRow], cells: int):
         bar.append(glyph, style=style)
     marks = [" "] * cells
     visits = [s for s in strip.spans if s[2] in ("science", "calibrator")]
-    for row, (a, b, kind) in zip(rows, visits, strict=False):
+    for row, (a, b, kind) in zip([r for r in rows if not r.done], visits, strict=False):
         if kind != "science":
             continue
         label = str(row.number)
@@ -160,9 +166,11 @@ def _strip_lines(strip: NightStrip, rows: list[VisitRow], cells: int):
     yield Text.assemble(("LST ", "dim"), lst)
 
 
-def _legend() -> Text:
+def _legend(present: set[str]) -> Text:
     text = Text("    ")
-    for glyph, style, label in GLYPHS.values():
+    for kind, (glyph, style, label) in GLYPHS.items():
+        if kind in ("done", "closed") and kind not in present:
+            continue
         text.append(glyph, style=style)
         text.append(f" {label}  ")
     text.append("# science visit", style="dim")
@@ -179,28 +187,38 @@ def _columns(rows: list[VisitRow], lines, opts=frozenset(), drop=()):
     cols = [
         ("#", [Text.assemble((GLYPHS[_kind(r)][0], GLYPHS[_kind(r)][1]), f" {r.number}")
                for r in rows], "left", None),
+        ("", ["done" if r.done else "" for r in rows], "left", "grey62"),
         ("UTC", [f"{r.utc_start}–{r.utc_end}" for r in rows], "left", None),
         ("LST", [r.lst_start for r in rows], "left", "dim"),
         ("target", [Text(r.target, style=GLYPHS[_kind(r)][1]) for r in rows], "left", None),
         ("kind", [r.kind if "long_kind" in opts else r.kind[:3] for r in rows], "left", "dim"),
         ("program", [r.program for r in rows], "left", None),
         ("alt°", [f"{r.alt_deg[0]:.0f}–{r.alt_deg[1]:.0f}" for r in rows], "right", None),
-        ("slew", [f"{r.slew_s:.0f}" for r in rows], "right", None),
-        ("carr", [f"{r.carriage_s:.0f}" for r in rows], "right", None),
-        ("acq", [f"{r.acquisition_s:.0f}" for r in rows], "right", None),
+        ("slew", [_num(r.slew_s, 0) for r in rows], "right", None),
+        ("carr", [_num(r.carriage_s, 0) for r in rows], "right", None),
+        ("acq", [_num(r.acquisition_s, 0) for r in rows], "right", None),
     ]  # fmt: skip
+    if not any(r.done for r in rows):
+        cols = [c for c in cols if c[0] != ""]
     if "gap" in opts:
-        cols.append(("gap", [f"{r.gap_s:.0f}" for r in rows], "right", "dim"))
+        cols.append(("gap", [_num(r.gap_s, 0) for r in rows], "right", "dim"))
     if "opd" in opts:
         for k, line in enumerate(lines):
-            cols.append((line, [f"{r.opd_start_m[k]:.2f}" for r in rows], "right", "blue"))
+            cols.append((line, [_num(r.opd_start_m[k], 2) for r in rows], "right", "blue"))
     if "serves" in opts:
         cols.append(("for #", [" ".join(map(str, r.serves)) for r in rows], "left", "dim"))
     return [c for c in cols if c[0] not in drop]
 
 
 def _kind(row: VisitRow) -> str:
+    if row.done:
+        return "done"
     return "science" if row.kind == "science" else "calibrator"
+
+
+def _num(x: float, digits: int) -> str:
+    """A number for the table; a dash where it is not known (a done visit's transition)."""
+    return "–" if math.isnan(x) else f"{x:.{digits}f}"
 
 
 def _width(cols, gap: int) -> int:

@@ -5,10 +5,14 @@ input reported together."""
 from __future__ import annotations
 
 import sys
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
 from typing import Any
+
+from rich.console import Console
 
 from scheduler.model.array import ArrayModel, Beams
 from scheduler.model.errors import Gather, InputError, Problem
@@ -112,6 +116,23 @@ def check_matplotlib(option: str, g: Gather) -> None:
         import matplotlib  # noqa: F401
     except ImportError:
         g.add(option, "", "needs matplotlib: pip install '.[plots]'")
+
+
+@contextmanager
+def solver_progress(console: Console, quiet: bool, label: str,
+                    limit_s: float) -> Iterator[Callable[[float, float | None], None] | None]:
+    """A live line with the best value, the bound and the gap while the optimiser works;
+    nothing with ``quiet`` or when the output is not a terminal."""
+    if quiet or not console.is_terminal:
+        yield None
+        return
+    from rich.live import Live
+
+    from scheduler.views.progress_line import ProgressLine
+
+    line = ProgressLine(label, limit_s)
+    with Live(line, console=console, transient=True, refresh_per_second=4):
+        yield line.update
 
 
 def warn(message: str) -> None:

@@ -10,6 +10,7 @@ from typing import Any
 
 import numpy as np
 import pandas as pd
+from rich.console import Console
 
 from scheduler.cli.commands.common import Inputs, Result, finish_inputs, gather_inputs
 from scheduler.geometry.constraints import evaluate
@@ -80,7 +81,7 @@ def _target(args: argparse.Namespace, g: Gather) -> tuple[Targets | None, int]:
     return g.take(coordinate_target, args.ra, args.dec), 0
 
 
-def run(args: argparse.Namespace, started_s: float) -> Result:
+def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     g = Gather()
     targets, index = _target(args, g)
     if not 0.0 < args.step_min <= MAX_STEP_MIN:

@@ -14,6 +14,8 @@ import time
 from pathlib import Path
 from typing import Any
 
+from rich.console import Console
+
 from scheduler.cli.commands.common import Result
 from scheduler.inputs.night_log import LogTerms, append_record, check_names, cut_last_line
 from scheduler.inputs.plan_file import read_plan
@@ -66,7 +68,7 @@ def _check_log_path(path: str, g: Gather) -> None:
         g.add("--log", "", f"{path} is not writable")
 
 
-def run(args: argparse.Namespace, started_s: float) -> Result:
+def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     """Append one record; prints it (JSON)."""
     g = Gather()
     doc = g.take(read_plan, args.plan)

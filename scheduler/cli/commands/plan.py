@@ -6,6 +6,8 @@ import argparse
 from dataclasses import replace
 from typing import Any
 
+from rich.console import Console
+
 from scheduler.cli.commands.common import (
     Inputs,
     Result,
@@ -13,6 +15,7 @@ from scheduler.cli.commands.common import (
     demo_file,
     finish_inputs,
     gather_inputs,
+    solver_progress,
 )
 from scheduler.model.errors import Gather
 from scheduler.model.plan import Plan, PlanSettings
@@ -73,12 +76,15 @@ def file_outputs(problem: NightProblem, plan: Plan, doc: dict[str, Any],
 
 
 def plan_and_show(inputs: Inputs, settings: PlanSettings, solver: str, outs: list[OutputPath],
-                  as_json: bool, started_s: float) -> Result:  # fmt: skip
+                  as_json: bool, started_s: float, console: Console,
+                  quiet: bool = False) -> Result:  # fmt: skip
     from scheduler.queue.planner import plan_night
     from scheduler.views.timeline_rows import timeline_view
 
     problem = inputs.problem()
-    plan = plan_night(problem, settings, solver, started_s)
+    with solver_progress(console, quiet or as_json or solver != "optimize", "planning",
+                         settings.time_limit_s) as progress:  # fmt: skip
+        plan = plan_night(problem, settings, solver, started_s, progress=progress)
     doc = plan_document(problem, inputs.array, plan, settings)
     plan, doc = verified(problem, inputs.array, plan, settings, doc)
     result = Result(outputs=file_outputs(problem, plan, doc, outs),
@@ -90,7 +96,7 @@ def plan_and_show(inputs: Inputs, settings: PlanSettings, solver: str, outs: lis
     return result
 
 
-def run(args: argparse.Namespace, started_s: float) -> Result:
+def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     g = Gather()
     check_time_limit(args.time_limit, g)
     array, targets, date = gather_inputs(args.array, args.config, args.targets, args.night, g)
@@ -102,10 +108,11 @@ def run(args: argparse.Namespace, started_s: float) -> Result:
     settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
                             deterministic=args.deterministic)  # fmt: skip
     inputs = finish_inputs(array, args.config, targets, date)
-    return plan_and_show(inputs, settings, args.solver, outs, args.json, started_s)
+    return plan_and_show(inputs, settings, args.solver, outs, args.json, started_s, console,
+                         args.quiet)  # fmt: skip
 
 
-def demo(args: argparse.Namespace, started_s: float) -> Result:
+def demo(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     g = Gather()
     array, targets, date = gather_inputs(demo_file("demo_array.toml"), DEMO_CONFIG,
                                          demo_file("demo_targets.csv"), DEMO_NIGHT, g)  # fmt: skip
@@ -118,6 +125,6 @@ def demo(args: argparse.Namespace, started_s: float) -> Result:
         "checked by the independent verifier. See `opdplan windows` for every target's windows."
     )
     result = plan_and_show(inputs, PlanSettings(time_limit_s=DEMO_TIME_LIMIT_S), "optimize", [],
-                           False, started_s)  # fmt: skip
+                           False, started_s, console)  # fmt: skip
     result.view.insert(0, intro)
     return result

@@ -4,7 +4,9 @@ from __future__ import annotations
 
 import argparse
 
-from scheduler.cli.commands.common import Result
+from rich.console import Console
+
+from scheduler.cli.commands.common import Result, solver_progress
 from scheduler.cli.commands.plan import check_time_limit, file_outputs, verified
 from scheduler.model.errors import Gather
 from scheduler.model.plan import PlanSettings
@@ -13,7 +15,7 @@ from scheduler.output.plan_document import replan_document
 from scheduler.replan.load import load_replan
 
 
-def run(args: argparse.Namespace, started_s: float) -> Result:
+def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     from scheduler.queue.planner import plan_night
     from scheduler.views.diff_view import DiffView
     from scheduler.views.timeline_rows import timeline_view
@@ -29,9 +31,11 @@ def run(args: argparse.Namespace, started_s: float) -> Result:
     rp = load_replan(args.plan, args.log, args.now, args.array, args.targets, g)
     settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
                             deterministic=args.deterministic)  # fmt: skip
-    plan = plan_night(rp.problem, settings, args.solver, started_s, rp.origin)
+    with solver_progress(console, args.quiet or args.json or args.solver != "optimize",
+                         "replanning", settings.time_limit_s) as progress:  # fmt: skip
+        plan = plan_night(rp.problem, settings, args.solver, started_s, rp.origin, progress)
     doc = replan_document(rp.problem, rp.array, plan, settings, rp.origin, rp.previous,
-                          rp.situation, args.plan)  # fmt: skip
+                          rp.situation, args.plan, rp.full)  # fmt: skip
     plan, doc = verified(rp.problem, rp.array, plan, settings, doc)
     result = Result(outputs=file_outputs(rp.problem, plan, doc, outs),
                     warnings=list(rp.situation.warnings))  # fmt: skip

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import argparse
 
+from rich.console import Console
+
 from scheduler.cli.commands.common import Result
 from scheduler.inputs.array_file import load_array
 from scheduler.inputs.catalog import load_targets
@@ -12,7 +14,7 @@ from scheduler.model.errors import Gather
 from scheduler.model.plan import PlanSettings
 
 
-def run(args: argparse.Namespace, started_s: float) -> Result:
+def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     """Exit status 0 when the plan holds, 1 when the verifier finds problems (listed),
     2 when an input cannot be read (the plan file failing its schema included)."""
     from scheduler.verify import verify_plan

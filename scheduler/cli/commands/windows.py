@@ -5,6 +5,8 @@ from __future__ import annotations
 import argparse
 from typing import Any
 
+from rich.console import Console
+
 from scheduler.cli.commands.common import Result, load_inputs
 from scheduler.geometry.bodies import moon_illumination
 from scheduler.geometry.windows import TargetWindows, observable_windows
@@ -56,7 +58,7 @@ def _category(code: int) -> str:
             "delay range": "delay", "Moon": "moon", "time": "time"}[family(code)]  # fmt: skip
 
 
-def run(args: argparse.Namespace, started_s: float) -> Result:
+def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     inputs = load_inputs(args.array, args.config, args.targets, args.night)
     problem = inputs.problem()
     windows = observable_windows(problem)
