@@ -40,6 +40,15 @@ def _solver_options(sp: argparse.ArgumentParser, limit_s: float) -> None:
                     "by hand")  # fmt: skip
     sp.add_argument("--quiet", action="store_true",
                     help="no live line of the best value and bound while optimising")
+    value_options(sp)
+
+
+def value_options(sp: argparse.ArgumentParser) -> None:
+    """The value rule (README.md, *Value rule*)."""
+    sp.add_argument("--value-per-hour", action="store_true",
+                    help="a science visit earns priority x hours (default: its priority)")
+    sp.add_argument("--strict-priority", action="store_true",
+                    help="a higher priority wins over any amount of lower ones")
 
 
 def _plan_commands(sub: argparse._SubParsersAction) -> None:
@@ -56,6 +65,7 @@ def _plan_commands(sub: argparse._SubParsersAction) -> None:
     v.add_argument("plan", help="the plan file (JSON)")
     v.add_argument("--array", required=True, help="array file (TOML)")
     v.add_argument("--targets", required=True, help="target catalog")
+    value_options(v)
     rp = _sub(sub, "replan", "the rest of the night from the current state",
               "--plan plan.json --log night.jsonl --now 2027-04-19T00:45:00Z --out new.json")
     rp.add_argument("--plan", required=True, help="the plan made earlier (JSON)")

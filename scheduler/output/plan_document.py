@@ -32,7 +32,7 @@ ADVISORY = "Advisory only: every motion follows the site's interlocks and proced
 PROFILE_POINTS = 9  # samples of a done visit for its altitude range
 
 
-def rules_of(settings: PlanSettings) -> dict[str, float | int]:
+def rules_of(settings: PlanSettings) -> dict[str, float | int | bool]:
     """The queue's rules as written in a plan (and compared by the verifier)."""
     return {
         "calibrator_gap_min": settings.calibrator_gap_s / 60.0,
@@ -42,6 +42,8 @@ def rules_of(settings: PlanSettings) -> dict[str, float | int]:
         "wavelength_um": settings.wavelength_m * 1e6,
         "calibrator_copies": settings.calibrator_copies,
         "carriage_weight": settings.carriage_weight,
+        "value_per_hour": settings.value_per_hour,
+        "strict_priority": settings.strict_priority,
     }
 
 

@@ -158,6 +158,8 @@ def expected_rules(settings: PlanSettings) -> dict[str, float]:
         "wavelength_um": settings.wavelength_m * 1e6,
         "calibrator_copies": float(settings.calibrator_copies),
         "carriage_weight": settings.carriage_weight,
+        "value_per_hour": float(settings.value_per_hour),
+        "strict_priority": float(settings.strict_priority),
     }
 
 

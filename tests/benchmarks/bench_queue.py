@@ -243,7 +243,7 @@ def main(argv: list[str] | None = None) -> None:
     print(f"Night-queue benchmark on INVENTED nights (night_suite, seed {args.seed}: invented "
           "sites, arrays and targets; no real ones) and the fictional demo night.")  # fmt: skip
     print(f"Optimiser vs greedy, time limit {limit:g} s per night, {os.cpu_count()} cores; "
-          "every plan verified.  Values in priority x hours, times in seconds.\n")  # fmt: skip
+          "every plan verified.  Values under the value rule (priority per visit), times in seconds.\n")  # fmt: skip
     print(HEADER)
     rows = []
     for name in names:

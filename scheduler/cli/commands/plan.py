@@ -106,7 +106,9 @@ def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
         check_matplotlib("--plot", g)
     g.raise_if_any()
     settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
-                            deterministic=args.deterministic)  # fmt: skip
+                            deterministic=args.deterministic,
+                            value_per_hour=args.value_per_hour,
+                            strict_priority=args.strict_priority)  # fmt: skip
     inputs = finish_inputs(array, args.config, targets, date)
     return plan_and_show(inputs, settings, args.solver, outs, args.json, started_s, console,
                          args.quiet)  # fmt: skip

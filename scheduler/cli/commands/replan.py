@@ -29,8 +29,12 @@ def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     else:
         outs = check_outputs({"--out": args.out}, reads, g)
     rp = load_replan(args.plan, args.log, args.now, args.array, args.targets, g)
+    rules = rp.previous.get("rules", {})  # the value rule stays the plan's unless changed
     settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
-                            deterministic=args.deterministic)  # fmt: skip
+                            deterministic=args.deterministic,
+                            value_per_hour=args.value_per_hour or bool(rules.get("value_per_hour")),
+                            strict_priority=args.strict_priority
+                            or bool(rules.get("strict_priority")))  # fmt: skip
     with solver_progress(console, args.quiet or args.json or args.solver != "optimize",
                          "replanning", settings.time_limit_s) as progress:  # fmt: skip
         plan = plan_night(rp.problem, settings, args.solver, started_s, rp.origin, progress)

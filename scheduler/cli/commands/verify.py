@@ -25,6 +25,8 @@ def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     targets = g.take(load_targets, args.targets)
     g.raise_if_any()
     assert doc is not None and array is not None and targets is not None
-    problems = verify_plan(doc, array, targets, PlanSettings())
+    settings = PlanSettings(value_per_hour=args.value_per_hour,
+                            strict_priority=args.strict_priority)  # fmt: skip
+    problems = verify_plan(doc, array, targets, settings)
     report = {"plan": args.plan, "valid": not problems, "problems": [str(p) for p in problems]}
     return Result(json=report, exit_code=0 if not problems else 1, caution=False)
