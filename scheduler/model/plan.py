@@ -49,7 +49,8 @@ def visit_id(name: str, kind: Kind, number: int) -> str:
 class Candidate:
     """A visit that may be scheduled: ``target`` indexes the catalog; ``number`` is the
     visit number of a science target or the copy number of a calibrator; ``value`` the
-    priority x hours it earns (0 for calibrators); ``starts`` its start windows."""
+    value one visit earns under the value rule (0 for calibrators); ``starts`` its start
+    windows."""
 
     id: str
     target: int

@@ -4,7 +4,7 @@ the fictional demo night (configuration medium, 2027-04-18).
 
 Every plan of both solvers is checked by the independent verifier; a rejected plan is a
 bug, never a benchmark figure, and stops the run with an error.  One row per night:
-candidate visits, greedy and optimiser value (priority x hours), their ratio, the proven
+candidate visits, greedy and optimiser value (the value rule), their ratio, the proven
 bound and whether the bounding model finished, the gap, the optimize run's wall time,
 its carriage repositioning time and calibrator visits per science visit.  Then medians
 and the goals:
@@ -53,7 +53,7 @@ GOAL_GAP_WORST = 0.15
 GOAL_RATIO = 1.10
 GOAL_BIG_CANDIDATES = 250  # "a 300-candidate night": the largest night at or above this
 GOAL_BIG_S = 35.0
-VALUE_TOL = 1e-3  # priority x hours; summary values are rounded to 4 decimals
+VALUE_TOL = 1e-3  # value units; summary values are rounded to 4 decimals
 
 
 @dataclass(frozen=True)
@@ -68,7 +68,7 @@ class Case:
 
 @dataclass(frozen=True)
 class Row:
-    """One night's figures (values in priority x hours, times in seconds)."""
+    """One night's figures (values under the value rule, times in seconds)."""
 
     night: str
     candidates: int
@@ -243,7 +243,8 @@ def main(argv: list[str] | None = None) -> None:
     print(f"Night-queue benchmark on INVENTED nights (night_suite, seed {args.seed}: invented "
           "sites, arrays and targets; no real ones) and the fictional demo night.")  # fmt: skip
     print(f"Optimiser vs greedy, time limit {limit:g} s per night, {os.cpu_count()} cores; "
-          "every plan verified.  Values under the value rule (priority per visit), times in seconds.\n")  # fmt: skip
+          "every plan verified.  Values under the value rule (priority per visit), times "
+          "in seconds.\n")  # fmt: skip
     print(HEADER)
     rows = []
     for name in names:
