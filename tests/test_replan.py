@@ -218,3 +218,52 @@ def test_replan_never_overwrites_the_plan_unless_asked(tonight, tmp_path, capsys
     assert _replan(plan, log, doc["visits"][2]["start_utc"], plan) == 2
     assert "--overwrite" in capsys.readouterr().err
     assert plan.read_bytes() == before
+
+
+def _invented_files(folder: Path) -> tuple[str, str]:
+    """An invented array at latitude -45 and a catalog of short targets near the south
+    celestial pole (up all night, no calibrators needed), plus one time-critical target
+    with a window late in the night."""
+    import tomllib
+
+    doc = tomllib.loads(Path(ARRAY).read_text())
+    doc["site"]["latitude_deg"] = -45.0
+    text = Path(ARRAY).read_text().replace("latitude_deg = -26.1", "latitude_deg = -45.0")
+    array = folder / "south.toml"
+    array.write_text(text)
+    rows = ["name,ra,dec,priority,duration_min,needs_calibrator,window_start_utc,window_end_utc"]
+    for k in range(40):
+        rows.append(f"Pole-{k:02d},{k * 9.0:.1f},{-75 - (k % 5):.1f},{1 + k % 5},20,false,,")
+    rows.append("Late-01,200.0,-78.0,3,20,false,2027-04-19T06:30:00Z,2027-04-19T07:30:00Z")
+    catalog = folder / "pole.csv"
+    catalog.write_text("\n".join(rows) + "\n")
+    assert doc["site"]["latitude_deg"] == -45.0
+    return str(array), str(catalog)
+
+
+def test_replan_fills_the_rest_of_the_night_and_keeps_the_time_critical_target(tmp_path):
+    """After a 90-minute closure, the replan uses the night to its end: with targets up
+    all night and no calibrators needed, the dark time left after its last visit is too
+    short for one more visit (its length and an acquisition); the time-critical target
+    planned before is planned again.  (The README's replanning contract; common
+    practice, no source.)"""
+    array, catalog = _invented_files(tmp_path)
+    plan = tmp_path / "plan.json"
+    assert main(["plan", "--array", array, "--config", "medium", "--targets", catalog,
+                 "--night", "2027-04-18", "--time-limit", "5", "--out", str(plan),
+                 "--quiet"]) == 0  # fmt: skip
+    doc = json.loads(plan.read_text())
+    assert "Late-01" in {v["target"] for v in doc["visits"]}
+    first = doc["visits"][0]
+    log = tmp_path / "night.jsonl"
+    append_record(log, {"event": "done", "visit": first["id"], "at_utc": first["end_utc"]})
+    closed = parse_utc(first["end_utc"])
+    append_record(log, {"event": "closed", "from_utc": _iso(closed),
+                        "to_utc": _iso(closed + CLOSURE_S)})  # fmt: skip
+    out = tmp_path / "new.json"
+    assert _replan(plan, log, _iso(closed + 600), out, "--time-limit", "4", "--quiet",
+                   solver="optimize") == 0  # fmt: skip
+    new = json.loads(out.read_text())
+    assert "Late-01" in {v["target"] for v in new["visits"]}
+    left = parse_utc(new["night"]["end_utc"]) - new["visits"][-1]["end_s"]
+    assert left < 20 * 60 + 480.0, f"{left / 60:.1f} min of dark time left idle"

@@ -8,3 +8,6 @@ Importing it configures astropy to stay offline (:mod:`.offline`).
 """
 
 from scheduler.astro import offline  # noqa: F401  (astropy offline before any transform)
+from scheduler.astro.eop_cache import install as _install_earth_orientation
+
+_install_earth_orientation()

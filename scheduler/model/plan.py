@@ -123,9 +123,9 @@ class PlanSummary:
     ``weighted_value`` is what the plan earns under the value rule; ``objective`` that
     less the carriage weight times the hours of carriage repositioning
     (``idle_carriage_s``); ``bound`` a proven upper bound of any plan's value and
-    ``gap`` = (bound - value) / bound, with ``bound_status`` "optimal" when the bound is
-    proven to be the best value (the gap is then the whole distance from the best) or
-    "at limit" when the bounding model stopped at the time limit; ``carriage_wait_s``
+    ``gap`` = (bound - value) / bound, with ``bound_status`` "proven" when the bounding
+    model finished (or the plan reaches the bound) or "at limit" when it stopped at the
+    time limit (the bound holds but may be loose); ``carriage_wait_s``
     the time the array waits for carriages beyond the telescope slews."""
 
     solver: str
@@ -179,4 +179,4 @@ class Start:
     last_end: tuple[tuple[int, float], ...] = ()
     closures: tuple[tuple[float, float], ...] = ()
     previous: tuple[tuple[str, float], ...] = ()
-    stability_weight: float = 120.0  # priority x seconds per previously planned visit kept
+    stability_weight: float = 0.05  # value units per previously planned visit kept

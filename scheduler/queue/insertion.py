@@ -44,6 +44,8 @@ def marginal_value(night: Night, counts: Counter[int], target: int) -> float:
     rule = night.q.rule
     have = counts.get(target, 0) + night.done.get(target, 0)
     w, need = float(rule.per_visit[target]), int(rule.min_visits[target])
+    if target in night.keep and counts.get(target, 0) < night.previous[target]:
+        w += 1.0 + float(np.sum(rule.per_visit))  # a time-critical visit planned before
     if have + 1 > need:
         return w
     return w * need if have + 1 == need else w * PARTIAL_CREDIT

@@ -29,7 +29,7 @@ from scheduler.queue.scoring import (
 from scheduler.queue.timing import Sequence, Timed, settle_sequence
 from scheduler.queue.visits import to_visits
 
-RESERVE_S = 1.5  # of the time limit, kept for exact timing, verification and writing
+RESERVE_S = 0.6  # of the time limit, kept for exact timing, verification and writing
 PREPARE_S = 1.0  # of the time limit, assumed spent before the optimiser in deterministic mode
 MIN_BUDGET_S = 0.3  # the optimiser always gets at least this
 
@@ -107,7 +107,7 @@ def _bound(report: SolverReport, value: float) -> tuple[float | None, float | No
     bound = max(min(known), value)
     gap = (bound - value) / bound if bound > 0 else 0.0
     proven = report.bound_status == "OPTIMAL" or gap <= 1e-9
-    return bound, gap, "optimal" if proven else "at limit"
+    return bound, gap, "proven" if proven else "at limit"
 
 
 def _summary(q: QueueInputs, visits: list[Visit], greedy_visits: list[Visit], name: str,

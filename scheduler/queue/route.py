@@ -10,6 +10,7 @@ the route becomes a sequence of candidates.
 
 from __future__ import annotations
 
+from collections import Counter
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -41,6 +42,9 @@ class Night:
     fixed_cals: tuple[tuple[int, float, float], ...]  # done calibrators (target, start, end)
     gap_s: float
     cal_rank: np.ndarray  # (N, R) per target, suitable calibrator targets nearest first, -1 pad
+    previous: dict[int, int] = field(default_factory=dict)  # target -> visits planned before
+    keep: frozenset[int] = frozenset()  # time-critical targets planned before: kept if possible
+    stability: float = 0.0  # value units per previously planned visit kept
 
     @classmethod
     def of(cls, q: QueueInputs, oracle: Oracle, origin: Start | None) -> Night:
@@ -60,7 +64,8 @@ class Night:
                    {i: bool(t.needs_calibrator[i]) for i in idx}, allowed,
                    dict(origin.done_count) if origin else {},
                    dict(origin.last_end) if origin else {}, fixed,
-                   q.settings.calibrator_gap_s, _cal_rank(q, oracle, allowed))  # fmt: skip
+                   q.settings.calibrator_gap_s, _cal_rank(q, oracle, allowed),
+                   *_previous(q, origin))  # fmt: skip
 
     def earliest(self, target: int, t_s: float) -> float | None:
         """The first allowed start of ``target`` at or after ``t_s``."""
@@ -75,6 +80,22 @@ class Night:
             if a <= start_s <= b:
                 return b
         return start_s
+
+
+def _previous(q: QueueInputs, origin: Start | None
+              ) -> tuple[dict[int, int], frozenset[int], float]:  # fmt: skip
+    """A replan's previous plan: visits per target still planned, the time-critical
+    targets among them, and the stability weight."""
+    if origin is None:
+        return {}, frozenset(), 0.0
+    by_id = {c.id: c.target for c in q.candidates}
+    counts: dict[int, int] = {}
+    for vid, _ in origin.previous:
+        if vid in by_id:
+            counts[by_id[vid]] = counts.get(by_id[vid], 0) + 1
+    t = q.problem.targets
+    keep = frozenset(i for i in counts if t.is_science[i] and t.is_time_critical(i))
+    return counts, keep, origin.stability_weight
 
 
 def _cal_rank(q: QueueInputs, oracle: Oracle, allowed: dict[int, int]) -> np.ndarray:
@@ -182,6 +203,13 @@ def bracket_faults(night: Night, route: Route) -> tuple[list[int], list[int]]:
 def route_value(night: Night, route: Route) -> float:
     """What the route's science earns under the value rule (done visits counted)."""
     return night.q.rule.of_targets((i for i in route.targets if night.science[i]), night.done)
+
+
+def kept(night: Night, route: Route) -> tuple[int, int]:
+    """(time-critical visits kept, all visits kept) of a replan's previous plan."""
+    counts = Counter(route.targets)
+    critical = sum(min(counts[i], night.previous[i]) for i in night.keep)
+    return critical, sum(min(counts[i], n) for i, n in night.previous.items())
 
 
 def to_sequence(night: Night, route: Route) -> list[tuple[Candidate, float]]:

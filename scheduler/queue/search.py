@@ -23,7 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from scheduler.queue.insertion import apply_best, candidate_moves
-from scheduler.queue.route import Night, Route, bracket_faults, route_value, time_route
+from scheduler.queue.route import Night, Route, bracket_faults, kept, route_value, time_route
 
 MAX_FILL = 200  # insertions per repair, a safety stop
 PENALTY_PER_S = 1e-7  # tie-break: of two routes worth the same, the shorter transitions
@@ -47,10 +47,19 @@ class Budget:
 
 
 def score(night: Night, route: Route) -> float:
-    """Value, less a tiny price for the time spent between visits."""
+    """Value, less a tiny price for the time spent between visits; in a replan, plus
+    the stability weight per previously planned visit kept, and first of all the
+    time-critical visits planned before (each outweighs every other value)."""
     ends = route.ends(night)
     busy = sum(s - e for s, e in zip(route.starts[1:], ends[:-1], strict=False))
-    return route_value(night, route) - PENALTY_PER_S * busy
+    critical, stable = kept(night, route)
+    return (route_value(night, route) - PENALTY_PER_S * busy + night.stability * stable
+            + keep_weight(night) * critical)  # fmt: skip
+
+
+def keep_weight(night: Night) -> float:
+    """More than everything the pool could earn: a kept time-critical visit wins."""
+    return 1.0 + float(np.sum(night.q.rule.per_visit)) * max(night.allowed.values(), default=1)
 
 
 def drop_idle_calibrators(night: Night, route: Route) -> Route:

@@ -131,7 +131,8 @@ def _summary(s: PlanSummary, plan: Plan) -> tuple[tuple[str, str], ...]:
         ("greedy", f"{s.greedy_value:.2f}"),
     ]
     if s.bound is not None:
-        items.append(("bound", f"{s.bound:.2f}"))
+        status = "proven" if s.bound_status == "proven" else "at time limit"
+        items.append(("bound", f"{s.bound:.2f} ({status})"))
         if s.gap is not None:
             items.append(("gap", f"{s.gap:.1%}"))
     items.append(("idle carriage", f"{s.idle_carriage_s:.0f} s"))
