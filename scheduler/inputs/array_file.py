@@ -11,6 +11,7 @@ import math
 from pathlib import Path
 from typing import Any
 
+from scheduler.inputs.modes_table import read_modes
 from scheduler.inputs.toml_file import read_toml
 from scheduler.model.array import (
     ArrayModel,
@@ -23,7 +24,7 @@ from scheduler.model.array import (
 )
 from scheduler.model.errors import ProblemList
 
-_TOP = {"site", "limits", "overheads", "stations", "delay_lines", "configurations"}
+_TOP = {"site", "limits", "overheads", "stations", "delay_lines", "configurations", "modes"}
 _SITE = {"name", "latitude_deg", "longitude_deg", "height_m"}
 _LIMITS = {
     "min_altitude_deg",
@@ -31,7 +32,11 @@ _LIMITS = {
     "sun_altitude_max_deg",
     "moon_separation_min_deg",
     "sun_separation_min_deg",
+    "wind_halfwidth_deg",
 }
+#: limits without a unit to convert, with their allowed ranges
+_LIMITS_PLAIN = {"min_squared_visibility": (0.0, 1.0), "calibrator_error_max": (0.0, 1.0),
+                 "diameter_error_fraction": (0.0, 1.0), "wind_speed_max_m_s": (0.0, math.inf)}
 _OVERHEADS = {"acquisition_s", "slew_rate_deg_s", "settle_s"}
 _STATION_REQ = {"name", "east_m", "north_m", "up_m", "internal_path_m"}
 _STATION_OPT = {"horizon"}
@@ -109,9 +114,10 @@ def parse_array(data: dict, source: str = "<array>") -> ArrayModel:
         for i, t in enumerate(_list(data, "configurations", r))
     ]
     r.unique([c.name for c in configs], "configurations")
+    modes = read_modes(data.get("modes"), r.p)
     problems.raise_if_any()
     return ArrayModel(
-        site, limits, overheads, tuple(stations), tuple(lines), tuple(configs), source
+        site, limits, overheads, tuple(stations), tuple(lines), tuple(configs), source, modes
     )
 
 
@@ -141,7 +147,7 @@ def _site(t: Any, r: _Reader) -> Site:
 
 
 def _limits(t: Any, r: _Reader) -> Limits:
-    if not r.keys(t, "limits", set(), _LIMITS):
+    if not r.keys(t, "limits", set(), _LIMITS | set(_LIMITS_PLAIN)):
         return Limits()
     d = Limits()
     deg = {
@@ -159,7 +165,15 @@ def _limits(t: Any, r: _Reader) -> Limits:
     for k in ("moon_separation_min_deg", "sun_separation_min_deg"):
         if not 0.0 <= deg[k] <= 180.0:
             r.p.add(f"limits.{k}", f"{deg[k]} is not in [0, 180]")
-    return Limits(**{k.replace("_deg", "_rad"): math.radians(v) for k, v in deg.items()})
+    plain = {}
+    for key, (lo, hi) in _LIMITS_PLAIN.items():
+        plain[key] = r.number(t, key, "limits", getattr(d, key))
+        if not lo <= plain[key] <= hi:
+            r.p.add(f"limits.{key}", f"{plain[key]} is not in [{lo}, {hi}]")
+    if not 0.0 <= deg["wind_halfwidth_deg"] <= 180.0:
+        r.p.add("limits.wind_halfwidth_deg", f"{deg['wind_halfwidth_deg']} is not in [0, 180]")
+    return Limits(**{k.replace("_deg", "_rad"): math.radians(v) for k, v in deg.items()},
+                  **plain)  # fmt: skip
 
 
 def _overheads(t: Any, r: _Reader) -> Overheads:

@@ -11,6 +11,7 @@ from __future__ import annotations
 import io
 import math
 import re
+from collections.abc import Sequence
 from pathlib import Path
 
 import numpy as np
@@ -26,8 +27,9 @@ KNOWN = REQUIRED + (
     "kind", "program", "priority", "visits", "min_visits", "min_separation_min",
     "needs_calibrator",
     "mag", "diameter_mas", "pm_ra_mas_yr", "pm_dec_mas_yr", "window_start_utc",
-    "window_end_utc",
+    "window_end_utc", "mode", "diameter_err_mas", "limb_darkening",
 )  # fmt: skip
+BAND_COLUMN = re.compile(r"^mag_([A-Za-z][A-Za-z0-9]*)$")
 
 
 _SEXA = re.compile(r"^\s*([+-]?)(\d{1,3})[:\s]+(\d{1,2})[:\s]+(\d{1,2}(?:\.\d*)?)\s*$")
@@ -83,9 +85,10 @@ def read_table(path: str | Path) -> pd.DataFrame:
         raise InputError(Problem(str(path), "", f"cannot read table: {msg}")) from None
 
 
-def load_targets(path: str | Path) -> Targets:
-    """Load a target catalog; raise :class:`InputError` listing every problem."""
-    return parse_targets(read_table(path), str(path))
+def load_targets(path: str | Path, modes: Sequence[str] | None = None) -> Targets:
+    """Load a target catalog; raise :class:`InputError` listing every problem.  With
+    ``modes`` (the array's mode names) each row's ``mode`` must be one of them."""
+    return parse_targets(read_table(path), str(path), modes)
 
 
 def _bool(text: str) -> bool:
@@ -130,7 +133,7 @@ class _Rows:
 
 
 _NUMERIC = ("ra", "dec", "pm_ra", "pm_dec", "priority", "duration", "visits", "min_visits",
-            "sep", "mag", "diam", "ws", "we")  # fmt: skip
+            "sep", "mag", "diam", "ws", "we", "diam_err", "limb")  # fmt: skip
 
 
 def _position(r: _Rows, i: int, out: dict[str, np.ndarray]) -> None:
@@ -163,6 +166,8 @@ def _visit_columns(r: _Rows, i: int, science: bool, out: dict[str, np.ndarray]) 
     out["sep"][i] = r.number("min_separation_min", i, 0.0, 0.0, 24 * 60.0)
     out["mag"][i] = r.number("mag", i, math.nan, -30.0, 40.0)
     out["diam"][i] = r.number("diameter_mas", i, math.nan, 0.0, 1e6)
+    out["diam_err"][i] = r.number("diameter_err_mas", i, math.nan, 0.0, 1e6)
+    out["limb"][i] = r.number("limb_darkening", i, math.nan, 0.0, 1.0)
     out["pm_ra"][i] = r.number("pm_ra_mas_yr", i, 0.0)
     out["pm_dec"][i] = r.number("pm_dec_mas_yr", i, 0.0)
 
@@ -192,7 +197,19 @@ def _name(r: _Rows, i: int, seen: dict[str, int]) -> str:
     return name
 
 
-def parse_targets(frame: pd.DataFrame, source: str = "<targets>") -> Targets:
+def _bands(r: _Rows, frame: pd.DataFrame, n: int) -> tuple[tuple[str, np.ndarray], ...]:
+    """Magnitudes per band from the ``mag_<band>`` columns (NaN where empty)."""
+    out = []
+    for col in frame.columns:
+        m = BAND_COLUMN.match(str(col))
+        if m:
+            values = np.array([r.number(str(col), i, math.nan, -30.0, 40.0) for i in range(n)])
+            out.append((m.group(1), values))
+    return tuple(out)
+
+
+def parse_targets(frame: pd.DataFrame, source: str = "<targets>",
+                  modes: Sequence[str] | None = None) -> Targets:  # fmt: skip
     """Validate a catalog table (all cells as strings); see :func:`load_targets`."""
     p = ProblemList(source)
     frame = frame.rename(columns=lambda c: str(c).strip())
@@ -219,10 +236,13 @@ def parse_targets(frame: pd.DataFrame, source: str = "<targets>") -> Targets:
         except ValueError as exc:
             p.add(r.where(i, "needs_calibrator"), str(exc))
         _window(r, i, out)
+        _mode(r, i, modes)
+    bands = _bands(r, frame, n)
     if n == 0:
         p.add("", "the catalog has no rows")
     p.raise_if_any()
-    extra = frame[[c for c in frame.columns if c not in KNOWN]].reset_index(drop=True)
+    extra = frame[[c for c in frame.columns if c not in KNOWN and not BAND_COLUMN.match(str(c))]
+                  ].reset_index(drop=True)  # fmt: skip
     return Targets(
         names=tuple(names), ra_rad=np.radians(out["ra"]), dec_rad=np.radians(out["dec"]),
         pm_ra_rad_yr=out["pm_ra"] * MAS_TO_RAD, pm_dec_rad_yr=out["pm_dec"] * MAS_TO_RAD,
@@ -232,4 +252,14 @@ def parse_targets(frame: pd.DataFrame, source: str = "<targets>") -> Targets:
         .astype(int), min_separation_s=out["sep"] * 60.0,
         needs_calibrator=needs & science, mag=out["mag"], diameter_rad=out["diam"] * MAS_TO_RAD,
         window_start_s=out["ws"], window_end_s=out["we"], extra=extra, source=source,
+        mode=tuple(r.get("mode", i) for i in range(n)), band_mags=bands,
+        diameter_err_rad=out["diam_err"] * MAS_TO_RAD, limb_darkening=out["limb"],
+        row=np.arange(n) + r.first,
     )  # fmt: skip
+
+
+def _mode(r: _Rows, i: int, modes: Sequence[str] | None) -> None:
+    """A row's ``mode`` must be one of the array's (empty: the array's first mode)."""
+    m = r.get("mode", i)
+    if modes is not None and m and m not in modes:
+        r.p.add(r.where(i, "mode"), f"{m!r} is not a mode of the array (one of {sorted(modes)})")

@@ -16,6 +16,8 @@ Records (all times ISO 8601 UTC with ``Z``; ``logged_utc`` is when it was writte
 - ``{"event": "closed", "from_utc", "to_utc"}``: domes closed (weather)
 - ``{"event": "out" | "back", "station": NAME | "delay_line": NAME, "at_utc"}``
 - ``{"event": "carriages", "at_utc", "opd_m": {LINE: metres}}``
+- ``{"event": "conditions", "at_utc", "seeing_arcsec", "coherence_ms"[, "wind_speed_m_s",
+  "wind_from_deg"]}``: the conditions from then on
 """
 
 from __future__ import annotations
@@ -170,6 +172,8 @@ def _record(data: Any, n: int, p: ProblemList) -> LogRecord | None:
         if not isinstance(data.get("visit"), str):
             p.add(where, f"{event}: missing 'visit'")
         return LogRecord(n, event, at_s=at, visit=data.get("visit"))
+    if event is Event.CONDITIONS:
+        return _conditions(data, n, at, p)
     if event in (Event.OUT, Event.BACK):
         st, dl = data.get("station"), data.get("delay_line")
         if (st is None) == (dl is None) or not isinstance(st or dl, str):
@@ -190,3 +194,30 @@ def _carriages(data: dict[str, Any], n: int, at: float | None, p: ProblemList) -
     assert isinstance(opd, dict)
     return LogRecord(n, Event.CARRIAGES, at_s=at,
                      opd_m=tuple((str(k), float(v)) for k, v in opd.items()))  # fmt: skip
+
+
+#: conditions fields and their ranges (seeing arcsec, tau0 ms, wind m/s, azimuth deg)
+CONDITION_RANGES = {"seeing_arcsec": (0.05, 10.0), "coherence_ms": (0.1, 1000.0),
+                    "wind_speed_m_s": (0.0, 100.0), "wind_from_deg": (0.0, 360.0)}
+
+
+def _conditions(data: dict[str, Any], n: int, at: float | None,
+                p: ProblemList) -> LogRecord | None:  # fmt: skip
+    values: dict[str, float | None] = {}
+    for key, (lo, hi) in CONDITION_RANGES.items():
+        v = data.get(key)
+        ok = v is None or (isinstance(v, int | float) and not isinstance(v, bool)
+                           and math.isfinite(v) and lo <= v <= hi)  # fmt: skip
+        if not ok:
+            p.add(f"line {n}", f"conditions: {key} must be a number in [{lo}, {hi}], got {v!r}")
+            return None
+        values[key] = None if v is None else float(v)
+    if all(v is None for v in values.values()):
+        p.add(f"line {n}", "conditions: give seeing_arcsec, coherence_ms or the wind")
+        return None
+    if (values["wind_speed_m_s"] is None) != (values["wind_from_deg"] is None):
+        p.add(f"line {n}", "conditions: wind_speed_m_s and wind_from_deg go together")
+        return None
+    return LogRecord(n, Event.CONDITIONS, at_s=at, seeing_arcsec=values["seeing_arcsec"],
+                     coherence_ms=values["coherence_ms"], wind_speed_m_s=values["wind_speed_m_s"],
+                     wind_from_deg=values["wind_from_deg"])  # fmt: skip

@@ -31,13 +31,52 @@ class Site:
 
 @dataclass(frozen=True)
 class Limits:
-    """Pointing and sky limits.  Altitudes are unrefracted."""
+    """Pointing, sky and measurement limits.  Altitudes are unrefracted.
+
+    ``min_squared_visibility``: a baseline on which a target's V^2 falls below it (or
+    past the first null) measures nothing; ``calibrator_error_max``: the most a
+    calibrator's diameter uncertainty may add to the calibrated V^2 (sigma of V^2);
+    ``diameter_error_fraction``: the relative diameter uncertainty assumed where the
+    catalog gives none; ``wind_speed_max_m_s`` and ``wind_halfwidth_rad``: above that
+    wind speed no telescope points within that angle of the azimuth the wind comes from
+    (inf: no wind limit)."""
 
     min_altitude_rad: float = float(np.radians(30.0))
     max_altitude_rad: float = float(np.radians(87.0))
     sun_altitude_max_rad: float = float(np.radians(-12.0))
     moon_separation_min_rad: float = float(np.radians(15.0))
     sun_separation_min_rad: float = float(np.radians(45.0))
+    min_squared_visibility: float = 0.01
+    calibrator_error_max: float = 0.02
+    diameter_error_fraction: float = 0.1
+    wind_speed_max_m_s: float = float("inf")
+    wind_halfwidth_rad: float = float(np.radians(45.0))
+
+
+@dataclass(frozen=True)
+class Mode:
+    """An observing mode of the beam combiner: its effective wavelength and bandwidth
+    (m), the faintest magnitudes its fringe tracker (in ``tracking_band``) and the
+    telescopes' guiding (in ``guiding_band``) work with at the reference seeing (rad) and
+    coherence time (s), how these limits move with the conditions (see
+    :mod:`scheduler.model.conditions`), and the extra set-up time (s) when the previous
+    visit used another mode.  Limits of inf: none."""
+
+    name: str
+    wavelength_m: float = 1.65e-6
+    bandwidth_m: float = 0.3e-6
+    tracking_band: str = "H"
+    tracking_limit_mag: float = float("inf")
+    guiding_band: str = "V"
+    guiding_limit_mag: float = float("inf")
+    reference_seeing_rad: float = float(np.radians(0.8 / 3600.0))
+    reference_coherence_s: float = 0.004
+    setup_s: float = 0.0
+    coherence_coefficient: float = 1.0
+    seeing_coefficient: float = 2.0
+
+
+DEFAULT_MODE = Mode("default")  # an array file without [[modes]]: 1.65 um, no limits
 
 
 @dataclass(frozen=True)
@@ -141,6 +180,19 @@ class ArrayModel:
     delay_lines: tuple[DelayLine, ...]
     configurations: tuple[Configuration, ...]
     source: str = ""
+    modes: tuple[Mode, ...] = (DEFAULT_MODE,)
+
+    def mode(self, name: str) -> Mode:
+        """The mode called ``name``; the first mode for an empty name."""
+        if not name:
+            return self.modes[0]
+        for m in self.modes:
+            if m.name == name:
+                return m
+        raise KeyError(_did_you_mean(name, [m.name for m in self.modes]))
+
+    def mode_index(self, name: str) -> int:
+        return self.modes.index(self.mode(name))
 
     def station(self, name: str) -> Station:
         for s in self.stations:

@@ -13,6 +13,7 @@ class Event(StrEnum):
     OUT = "out"
     BACK = "back"
     CARRIAGES = "carriages"
+    CONDITIONS = "conditions"
 
 
 @dataclass(frozen=True)
@@ -29,6 +30,10 @@ class LogRecord:
     station: str | None = None
     delay_line: str | None = None
     opd_m: tuple[tuple[str, float], ...] = ()
+    seeing_arcsec: float | None = None
+    coherence_ms: float | None = None
+    wind_speed_m_s: float | None = None
+    wind_from_deg: float | None = None
 
     @property
     def when_s(self) -> float | None:

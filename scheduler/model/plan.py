@@ -28,7 +28,6 @@ class PlanSettings:
     calibrator_max_sep_rad: float = float(np.radians(10.0))
     calibrator_max_dmag: float = 1.5
     calibrator_min_visibility: float = 0.8
-    wavelength_m: float = 1.65e-6
     calibrator_copies: int = 3
     carriage_weight: float = 1.0
     value_per_hour: bool = False
@@ -96,6 +95,8 @@ class Visit:
     opd_end_m: tuple[float, ...]
     alt_range_rad: tuple[float, float]
     calibrates: tuple[str, ...] = ()
+    setup_s: float = 0.0
+    weak_baselines: tuple[tuple[str, float], ...] = ()  # (baseline, least V^2) below the floor
 
     @property
     def is_science(self) -> bool:
@@ -150,10 +151,31 @@ class PlanSummary:
 
 
 @dataclass(frozen=True)
+class LeftOut:
+    """A science target the plan leaves out (or with visits left): ``reason`` is shared
+    by every target left out for the same cause, ``detail`` is this target's own
+    figures (``H 8.3``, ``1 of 3 visits scheduled``; empty when none)."""
+
+    target: str
+    reason: str
+    detail: str = ""
+
+    @property
+    def text(self) -> str:
+        """One line: ``reason: detail``."""
+        return f"{self.reason}: {self.detail}" if self.detail else self.reason
+
+
+@dataclass(frozen=True)
 class Plan:
+    """The visits, every science target left out with why, the summary, and per hour
+    of the night (POSIX s of the full hour) the backups: targets not planned that stay
+    possible if the conditions get one step worse, best first."""
+
     visits: tuple[Visit, ...]
-    unscheduled: tuple[tuple[str, str], ...]  # (target, reason)
+    unscheduled: tuple[LeftOut, ...]
     summary: PlanSummary
+    backups: tuple[tuple[float, tuple[str, ...]], ...] = ()
 
 
 @dataclass(frozen=True)

@@ -3,11 +3,12 @@ catalog, prepared once (by :mod:`scheduler.astro.problem`) and then only read.""
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
-from scheduler.model.array import Beams, Limits, Overheads
+from scheduler.model.array import Beams, Limits, Mode, Overheads
+from scheduler.model.conditions import Conditions
 from scheduler.model.night import Night
 from scheduler.model.targets import Targets
 
@@ -30,7 +31,9 @@ class NightProblem:
 
     ``ri_rad``/``di_rad`` are each target's geocentric CIRS place at
     ``night.frame.t_ref_s`` (precession, nutation, aberration and proper motion
-    applied), from which the fast path turns the sky with the Earth.
+    applied), from which the fast path turns the sky with the Earth.  ``modes`` are the
+    array's observing modes and ``mode_index`` each target's; ``faint`` each target's
+    FAINT reason code under ``conditions`` (0: bright enough or unknown).
     """
 
     night: Night
@@ -41,3 +44,21 @@ class NightProblem:
     ri_rad: np.ndarray
     di_rad: np.ndarray
     margins: Margins = Margins()
+    modes: tuple[Mode, ...] = (Mode("default"),)
+    mode_index: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
+    faint: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
+    conditions: Conditions = Conditions()
+
+    def __post_init__(self) -> None:
+        n = len(self.targets)
+        for name in ("mode_index", "faint"):
+            if len(getattr(self, name)) != n:
+                object.__setattr__(self, name, np.zeros(n, int))
+
+    @property
+    def wavelength_m(self) -> np.ndarray:
+        """Each target's effective wavelength (its mode's), metres."""
+        return np.array([m.wavelength_m for m in self.modes])[self.mode_index]
+
+    def mode_of(self, i: int) -> Mode:
+        return self.modes[int(self.mode_index[i])]

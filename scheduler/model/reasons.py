@@ -31,13 +31,17 @@ class Limit(IntEnum):
     MOON = 5
     DELAY = 6
     TIME_WINDOW = 7
+    WIND = 8
+    RESOLVED = 9
+    FAINT = 10
 
 
 #: coarse families, for views and the semester's accounting
 FAMILY = {
     Limit.OK: "open", Limit.LOW: "altitude", Limit.HIGH: "altitude",
     Limit.HORIZON: "horizon mask", Limit.SUN: "time", Limit.MOON: "Moon",
-    Limit.DELAY: "delay range", Limit.TIME_WINDOW: "time",
+    Limit.DELAY: "delay range", Limit.TIME_WINDOW: "time", Limit.WIND: "wind",
+    Limit.RESOLVED: "over-resolved", Limit.FAINT: "too faint",
 }  # fmt: skip
 
 
@@ -50,6 +54,11 @@ def delay_codes(high_line: np.ndarray, low_line: np.ndarray, n_lines: int) -> np
     """Codes of an empty delay span: ``high_line`` would need more than its maximum path
     while ``low_line`` sits at its minimum."""
     return int(Limit.DELAY) + DETAIL * (np.asarray(high_line) * n_lines + np.asarray(low_line))
+
+
+def faint_code(which: int) -> int:
+    """Code of a target too faint for fringe tracking (``which`` 0) or guiding (1)."""
+    return int(Limit.FAINT) + DETAIL * which
 
 
 def limit_of(code: int | np.ndarray) -> np.ndarray:
@@ -97,6 +106,11 @@ def words(code: int, beams: Beams, limits: Limits) -> str:
         Limit.DELAY: f"delay range: {c.high_line} at its maximum while {c.low_line} at its "
         "minimum",
         Limit.TIME_WINDOW: "outside its time-critical window",
+        Limit.WIND: "pointing into the wind",
+        Limit.RESOLVED: f"over-resolved: V^2 below {limits.min_squared_visibility:g} or past the "
+        "first null on every baseline",
+        Limit.FAINT: "too faint for "
+        + ("fringe tracking" if int(code) // DETAIL == 0 else "guiding") + " tonight",
     }
     return text[c.limit]
 
@@ -108,8 +122,11 @@ def short_words(code: int, beams: Beams) -> str:
         return f"delay {c.high_line}/{c.low_line}"
     if c.limit == Limit.HORIZON:
         return f"horizon {c.station}"
+    if c.limit == Limit.FAINT:
+        return "faint (tracking)" if int(code) // DETAIL == 0 else "faint (guiding)"
     return {Limit.OK: "-", Limit.LOW: "altitude", Limit.HIGH: "zenith limit", Limit.SUN: "Sun",
-            Limit.MOON: "Moon", Limit.TIME_WINDOW: "time window"}[c.limit]  # fmt: skip
+            Limit.MOON: "Moon", Limit.TIME_WINDOW: "time window", Limit.WIND: "wind",
+            Limit.RESOLVED: "over-resolved"}[c.limit]  # fmt: skip
 
 
 def family(code: int) -> str:

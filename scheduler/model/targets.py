@@ -6,7 +6,7 @@ SI inside: radians, seconds.  Loaded and validated by :mod:`scheduler.inputs.cat
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, fields
+from dataclasses import dataclass, field, fields
 from enum import StrEnum
 
 import numpy as np
@@ -29,9 +29,13 @@ class Targets:
     ``ra_rad``/``dec_rad`` are ICRS at epoch J2000.0; ``pm_ra_rad_yr`` includes the
     cos(dec) factor.  ``window_start_s``/``window_end_s`` are POSIX UTC seconds of a
     target's own time-critical window, NaN where it has none.  ``diameter_rad`` and
-    ``mag`` are NaN where not given.  A science target wants ``visits`` visits and earns
-    its value only once ``min_visits`` of them are made.  ``extra`` keeps the catalog's
-    other columns.
+    ``mag`` are NaN where not given; ``mag`` is the magnitude in the tracking band of
+    the target's ``mode`` (empty: the array's first mode), ``band_mags`` the magnitudes
+    per band (``mag_H``, ``mag_V``, ... columns), ``diameter_err_rad`` the diameter's
+    uncertainty and ``limb_darkening`` a linear limb-darkening coefficient (NaN: a
+    uniform disk); ``row`` is each target's line in its file.  A science target wants
+    ``visits`` visits and earns its value only once ``min_visits`` of them are made.
+    ``extra`` keeps the catalog's other columns.
     """
 
     names: tuple[str, ...]
@@ -53,6 +57,27 @@ class Targets:
     window_end_s: np.ndarray
     extra: pd.DataFrame
     source: str = ""
+    mode: tuple[str, ...] = ()
+    band_mags: tuple[tuple[str, np.ndarray], ...] = ()
+    diameter_err_rad: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    limb_darkening: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    row: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
+
+    def __post_init__(self) -> None:  # catalogs built in code may leave these out
+        n = len(self.names)
+        if len(self.mode) != n:
+            object.__setattr__(self, "mode", ("",) * n)
+        for name, fill in (("diameter_err_rad", np.nan), ("limb_darkening", np.nan),
+                           ("row", 0)):  # fmt: skip
+            if len(getattr(self, name)) != n:
+                object.__setattr__(self, name, np.full(n, fill))
+
+    def magnitude(self, band: str) -> np.ndarray:
+        """Magnitudes in ``band`` (NaN where unknown)."""
+        for b, values in self.band_mags:
+            if b == band:
+                return values
+        return np.full(len(self.names), np.nan)
 
     def __len__(self) -> int:
         return len(self.names)
@@ -79,6 +104,8 @@ class Targets:
             v = getattr(self, f.name)
             if isinstance(v, np.ndarray):
                 pick[f.name] = v[pick_idx]
+            elif f.name == "band_mags":
+                pick[f.name] = tuple((b, values[pick_idx]) for b, values in v)
             elif isinstance(v, tuple):
                 pick[f.name] = tuple(v[i] for i in pick_idx)
             elif isinstance(v, pd.DataFrame):
