@@ -98,3 +98,25 @@ def uvw(enu_m, lat_rad: float, ha_rad, dec_rad):
     v = -sd * ch * lx + sd * sh * ly + cd * lz
     w = cd * ch * lx - cd * sh * ly + sd * lz
     return u, v, w
+
+
+def baseline_pairs(beams: Beams) -> tuple[np.ndarray, np.ndarray]:
+    """Index pairs (i, j), i < j, of the lines in use: one per baseline."""
+    i, j = np.triu_indices(len(beams), k=1)
+    return i, j
+
+
+def baseline_names(beams: Beams) -> list[str]:
+    """``quartz-opal`` for each baseline, in the order of :func:`baseline_pairs`."""
+    i, j = baseline_pairs(beams)
+    return [f"{beams.station_names[a]}-{beams.station_names[b]}" for a, b in zip(i, j, strict=True)]
+
+
+def projected_baselines(beams: Beams, pds_m: np.ndarray) -> np.ndarray:
+    """Projected baseline lengths sqrt(|B|^2 - w^2) (P, ...) in metres, with w = B . s
+    the difference of the stations' projected paths (Thompson, Moran & Swenson ch. 4)."""
+    i, j = baseline_pairs(beams)
+    b = beams.position_enu_m[j] - beams.position_enu_m[i]
+    length2 = np.sum(b * b, axis=1).reshape((len(i),) + (1,) * (pds_m.ndim - 1))
+    w = pds_m[j] - pds_m[i]
+    return np.sqrt(np.maximum(length2 - w * w, 0.0))

@@ -1,37 +1,69 @@
-"""Candidate visits, which calibrators suit which science targets, and the queue's
-inputs for one night.
+"""Candidate visits, and which calibrators suit which science targets.
 
 Each science target gives up to ``visits`` candidates; each calibrator that suits some
 science target gives ``calibrator_copies`` candidates (one calibrator may be observed
-several times a night).  A calibrator suits a science target when it is within the
-angular distance limit, within the magnitude difference when both magnitudes are known,
-and, when its diameter is known, its uniform-disk visibility ``V = 2 J1(x)/x`` with
-``x = pi theta B / lambda`` stays at least ``calibrator_min_visibility`` on the longest
-physical baseline (which bounds every projected baseline, so it holds all night).
+several times a night).  A calibrator suits a science target when both use the same
+observing mode, it is within the angular distance limit, within the magnitude
+difference when both magnitudes are known (tracking band), and, when its diameter is
+known, it stays nearly unresolved and well known on the longest baseline of the lines
+in use (which bounds every projected baseline): its visibility at least
+``calibrator_min_visibility`` and the error its diameter uncertainty brings to V^2,
+sigma(V^2), at most the array's ``calibrator_error_max`` at every projected length up to
+that baseline.  Among suitable calibrators the search prefers the smaller error, then
+the nearer on the sky (which keeps their airmasses alike).
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from scheduler.geometry.visibility import angular_distance, uniform_disk_visibility
+from scheduler.geometry.visibility import (
+    angular_distance,
+    disk_visibility,
+    squared_visibility_error,
+)
 from scheduler.geometry.windows import TargetWindows
+from scheduler.model.brightness import band_magnitudes
 from scheduler.model.plan import Candidate, PlanSettings, visit_id
+from scheduler.model.problem import NightProblem
 from scheduler.model.targets import Kind, Targets
 
+ERROR_SAMPLES = 48  # projected lengths from 0 to the longest baseline, for sigma(V^2)
 
-def suitable_calibrators(targets: Targets, longest_baseline_m: float,
-                         s: PlanSettings) -> np.ndarray:  # fmt: skip
+
+def calibrator_errors(problem: NightProblem) -> np.ndarray:
+    """Per target: the largest sigma(V^2) its diameter uncertainty brings at any
+    projected length up to the longest baseline (0 where the diameter is unknown); the
+    uncertainty is ``diameter_err_mas``, else the array's assumed fraction."""
+    t = problem.targets
+    out = np.zeros(len(t))
+    lengths = np.linspace(0.0, problem.beams.longest_baseline_m(), ERROR_SAMPLES)
+    for i in np.flatnonzero(~t.is_science & (np.nan_to_num(t.diameter_rad) > 0)):
+        err = t.diameter_err_rad[i]
+        if np.isnan(err):
+            err = problem.limits.diameter_error_fraction * t.diameter_rad[i]
+        out[i] = float(np.max(squared_visibility_error(
+            float(t.diameter_rad[i]), float(err), lengths, float(problem.wavelength_m[i]),
+            float(np.nan_to_num(t.limb_darkening[i])))))  # fmt: skip
+    return out
+
+
+def suitable_calibrators(problem: NightProblem, s: PlanSettings,
+                         errors: np.ndarray) -> np.ndarray:  # fmt: skip
     """Boolean matrix (N, N): ``[i, j]`` when calibrator j suits science target i."""
-    ra, dec = targets.ra_rad, targets.dec_rad
-    dist = angular_distance(ra[:, None], dec[:, None], ra[None, :], dec[None, :])
-    ok = dist <= s.calibrator_max_sep_rad
-    dmag = np.abs(targets.mag[:, None] - targets.mag[None, :])
-    ok &= ~(dmag > s.calibrator_max_dmag)  # NaN (a magnitude unknown) passes
-    vis = uniform_disk_visibility(np.nan_to_num(targets.diameter_rad), longest_baseline_m,
-                                  s.wavelength_m)  # fmt: skip
-    ok &= (vis >= s.calibrator_min_visibility)[None, :]
-    ok &= targets.is_science[:, None] & ~targets.is_science[None, :]
+    t = problem.targets
+    ra, dec = t.ra_rad, t.dec_rad
+    ok = angular_distance(ra[:, None], dec[:, None], ra[None, :], dec[None, :]) <= (
+        s.calibrator_max_sep_rad)
+    mag = band_magnitudes(t, problem.modes, problem.mode_index, True)
+    ok &= ~(np.abs(mag[:, None] - mag[None, :]) > s.calibrator_max_dmag)  # unknown passes
+    x = np.pi * np.nan_to_num(t.diameter_rad) * problem.beams.longest_baseline_m() / (
+        problem.wavelength_m)
+    vis = disk_visibility(x, t.limb_darkening)
+    ok &= ((vis >= s.calibrator_min_visibility) & (errors <= problem.limits.calibrator_error_max)
+           )[None, :]  # fmt: skip
+    ok &= problem.mode_index[:, None] == problem.mode_index[None, :]
+    ok &= t.is_science[:, None] & ~t.is_science[None, :]
     return ok
 
 

@@ -60,18 +60,23 @@ class GridTransitions:
     """Transition times read from the grid, with a small pad for the nearest-sample
     rounding (``pad_s``)."""
 
-    def __init__(self, grid: GeometryGrid, beams: Beams, over: Overheads, pad_s: float = 0.0):
+    def __init__(self, grid: GeometryGrid, beams: Beams, over: Overheads, pad_s: float = 0.0,
+                 setup: np.ndarray | None = None):  # fmt: skip
         self.g, self.beams, self.over, self.pad = grid, beams, over, pad_s
+        self.setup = setup  # (N, N) set-up seconds from target a's mode to b's
+
+    def setup_s(self, ia: int, ib: int) -> float:
+        return 0.0 if self.setup is None else float(self.setup[ia, ib])
 
     def seconds(self, ia: int, ta: float, ib: int, tb: float) -> tuple[float, float]:
         """(total transition, carriage move) in seconds from target ``ia`` ending at
         ``ta`` to ``ib`` starting at ``tb``."""
         g = self.g
-        ca, cb = g.column(ta), g.column(tb)
+        ca, cb = g.column_of(ta), g.column_of(tb)
         tr = transition(
             self.beams, self.over,
             g.alt_rad[ia, ca], g.az_rad[ia, ca], g.pds_m[:, ia, ca], g.k_low_m[ia, ca],
             g.k_high_m[ia, ca], g.alt_rad[ib, cb], g.az_rad[ib, cb], g.pds_m[:, ib, cb],
-            g.k_low_m[ib, cb], g.k_high_m[ib, cb],
+            g.k_low_m[ib, cb], g.k_high_m[ib, cb], setup_s=self.setup_s(ia, ib),
         )  # fmt: skip
         return float(tr.total_s) + self.pad, float(tr.carriage_s)

@@ -66,4 +66,5 @@ class Oracle:
         reach = float(np.max(np.linalg.norm(beams.position_enu_m, axis=1), initial=0.0))
         rate = float(np.min(beams.rate_m_s)) if len(beams) else 1.0
         carriage = 2.0 * reach * np.sin(0.5 * ang) / rate + over.settle_s
-        return np.maximum(slew, carriage) + over.acquisition_s
+        setup = self.tr.setup if self.tr.setup is not None else 0.0
+        return np.maximum(slew, carriage) + over.acquisition_s + setup

@@ -13,9 +13,19 @@ from collections.abc import Callable
 
 import numpy as np
 
-from scheduler.model.plan import Plan, PlanSettings, PlanSummary, SolverReport, Start, Visit
+from scheduler.model.plan import (
+    LeftOut,
+    Plan,
+    PlanSettings,
+    PlanSummary,
+    SolverReport,
+    Start,
+    Visit,
+)
 from scheduler.model.problem import NightProblem
-from scheduler.model.reasons import words
+from scheduler.model.reasons import Limit, limit_of, words
+from scheduler.queue.backups import backups
+from scheduler.queue.explain import explain
 from scheduler.queue.greedy import greedy_sequence
 from scheduler.queue.prepare import QueueInputs, prepare_queue
 from scheduler.queue.restart import restrict
@@ -95,7 +105,8 @@ def plan_night(problem: NightProblem, settings: PlanSettings, solver: str = "opt
                               round(result.bound_s, 3), result.evaluations)  # fmt: skip
     summary = _summary(q, visits, greedy_visits, name, previous_value, report, origin,
                        time.perf_counter() - t0)  # fmt: skip
-    return Plan(tuple(visits), tuple(_unscheduled(q, visits, origin)), summary)
+    return Plan(tuple(visits), tuple(_unscheduled(q, visits, origin)), summary,
+                backups(q, visits))
 
 
 def _bound(report: SolverReport, value: float) -> tuple[float | None, float | None, str | None]:
@@ -131,7 +142,7 @@ def _summary(q: QueueInputs, visits: list[Visit], greedy_visits: list[Visit], na
 
 
 def _unscheduled(q: QueueInputs, visits: list[Visit],
-                 origin: Start | None) -> list[tuple[str, str]]:  # fmt: skip
+                 origin: Start | None) -> list[LeftOut]:  # fmt: skip
     """Every science target with visits still wanted, and why."""
     t, problem = q.problem.targets, q.problem
     done: dict[int, int] = dict(origin.done_count) if origin else {}
@@ -144,15 +155,19 @@ def _unscheduled(q: QueueInputs, visits: list[Visit],
         if got >= wanted:
             continue
         w = q.windows[i]
+        detail = ""
         if not w.start_windows(float(t.duration_s[i])):
+            code = w.main_reason()
             why = "never observable tonight"
-            if w.excluded:
-                why += f" ({words(w.main_reason(), problem.beams, problem.limits)})"
+            if int(limit_of(code)) in (Limit.FAINT, Limit.RESOLVED):
+                why, detail = explain(problem, int(i), code)
+            elif w.excluded:
+                why += f" ({words(code, problem.beams, problem.limits)})"
         elif t.needs_calibrator[i] and not any(j in cal_ok for j in np.flatnonzero(q.suits[i])):
             why = "no suitable calibrator observable tonight"
         else:
             why = "lost to higher priority"
         if got:
-            why = f"{got} of {wanted} visits scheduled; rest {why}"
-        out.append((t.names[i], why))
+            detail = "; ".join(x for x in (f"{got} of {wanted} visits scheduled", detail) if x)
+        out.append(LeftOut(t.names[i], why, detail))
     return out

@@ -20,6 +20,8 @@ from scheduler.queue.oracle import Oracle
 from scheduler.queue.prepare import QueueInputs
 
 FIT_TRIES = 4  # fixed-point steps between a start and the transition it needs
+ERROR_STEP = 0.005  # calibration errors closer than this rank as equal
+ESTIMATE_STEP_S = 60.0  # transition estimates closer than this rank as equal
 
 
 @dataclass(frozen=True, eq=False)
@@ -99,14 +101,23 @@ def _previous(q: QueueInputs, origin: Start | None
 
 
 def _cal_rank(q: QueueInputs, oracle: Oracle, allowed: dict[int, int]) -> np.ndarray:
-    """Per catalog target, the calibrator targets of the pool that suit it, nearest on
-    the sky first, padded with -1."""
-    pool = np.array(sorted(j for j in allowed if not q.problem.targets.is_science[j]), int)
-    n = len(q.problem.targets)
+    """Per catalog target, the calibrator targets of the pool that suit it, best first
+    (calibration error, then transition time, then airmass match), padded with -1."""
+    t = q.problem.targets
+    pool = np.array(sorted(j for j in allowed if not t.is_science[j]), int)
+    n = len(t)
+    # airmass on the meridian, 1 / cos(dec - latitude): at equal hour angles the airmass
+    # of two targets differs mostly through their declinations
+    transit = 1.0 / np.maximum(np.cos(t.dec_rad - q.problem.night.frame.latitude_rad), 0.05)
     rows = []
     for i in range(n):
         fit = pool[q.suits[i, pool]] if len(pool) else pool
-        rows.append(fit[np.argsort(oracle.estimate[fit, i], kind="stable")])
+        # smaller calibration error first (in steps of 0.005 in V^2), then nearer (in
+        # steps of a minute of transition), then the closer airmass
+        rank = np.lexsort((np.abs(transit[fit] - transit[i]),
+                           np.round(oracle.estimate[fit, i] / ESTIMATE_STEP_S),
+                           np.round(q.cal_error[fit] / ERROR_STEP)))  # fmt: skip
+        rows.append(fit[rank])
     width = max([len(r) for r in rows] + [1])
     out = np.full((n, width), -1)
     for i, r in enumerate(rows):

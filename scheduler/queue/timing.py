@@ -41,7 +41,14 @@ def exact_transition(problem: NightProblem, ia: int, ta: float, ib: int, tb: flo
     eb, lb, hb = state_at(problem, ib, tb)
     return transition(problem.beams, problem.overheads, ea.alt_rad[0], ea.az_rad[0],
                       ea.pds_m[:, 0], la, ha, eb.alt_rad[0], eb.az_rad[0], eb.pds_m[:, 0], lb,
-                      hb)  # fmt: skip
+                      hb, setup_s=mode_setup_s(problem, ia, ib))  # fmt: skip
+
+
+def mode_setup_s(problem: NightProblem, ia: int | None, ib: int) -> float:
+    """Set-up seconds of target ``ib``'s mode after target ``ia`` (unknown: charged)."""
+    if ia is not None and problem.mode_index[ia] == problem.mode_index[ib]:
+        return 0.0
+    return problem.mode_of(ib).setup_s if len(problem.modes) > 1 else 0.0
 
 
 def from_origin(problem: NightProblem, origin: Start, ib: int, tb: float) -> Transition:
@@ -68,7 +75,7 @@ def from_origin(problem: NightProblem, origin: Start, ib: int, tb: float) -> Tra
         blind = (beams.opd_max_m - beams.opd_min_m)[~known] / beams.rate_m_s[~known]
         carriage = max(float(move), float(np.max(blind, initial=0.0))) + over.settle_s
     return Transition(np.asarray(slew), np.asarray(carriage), np.asarray(over.acquisition_s),
-                      np.asarray(float(k)))  # fmt: skip
+                      np.asarray(float(k)), mode_setup_s(problem, origin.target, ib))  # fmt: skip
 
 
 def _fit(cand: Candidate, earliest_s: float, after_s: float,

@@ -11,7 +11,8 @@ from __future__ import annotations
 import numpy as np
 
 from scheduler.geometry.constraints import Evaluation, evaluate
-from scheduler.geometry.delay import line_paths
+from scheduler.geometry.delay import baseline_names, line_paths, projected_baselines
+from scheduler.geometry.visibility import disk_visibility, usable
 from scheduler.model.plan import Start, Visit
 from scheduler.model.problem import NightProblem
 from scheduler.queue.timing import Brackets, Timed
@@ -80,5 +81,23 @@ def to_visits(problem: NightProblem, timed: Timed, br: Brackets,
             opd_end_m=tuple(float(v) for v in x1),
             alt_range_rad=(float(prof.alt_rad.min()), float(prof.alt_rad.max())),
             calibrates=tuple(served.get(cand.id, ())),
+            setup_s=float(tr.setup_s) if tr is not None else 0.0,
+            weak_baselines=weak_baselines(problem, cand.target, prof),
         ))  # fmt: skip
     return visits
+
+
+def weak_baselines(problem: NightProblem, target: int,
+                   prof: Evaluation) -> tuple[tuple[str, float], ...]:  # fmt: skip
+    """Baselines that measure nothing at some instant of the visit (past the first null
+    or V^2 below the floor), with the least V^2 there: a partly resolved target."""
+    theta = float(np.nan_to_num(problem.targets.diameter_rad[target]))
+    if theta <= 0.0 or len(problem.beams) < 2:
+        return ()
+    u = float(problem.targets.limb_darkening[target])
+    x = np.pi * theta * projected_baselines(problem.beams, prof.pds_m) / problem.wavelength_m[
+        target]  # fmt: skip
+    bad = ~usable(x, np.full(x.shape, u), problem.limits.min_squared_visibility)
+    v2 = disk_visibility(x, u) ** 2
+    names = baseline_names(problem.beams)
+    return tuple((names[k], round(float(v2[k].min()), 5)) for k in np.flatnonzero(bad.any(axis=1)))
