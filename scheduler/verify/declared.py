@@ -155,7 +155,6 @@ def expected_rules(settings: PlanSettings) -> dict[str, float]:
         "calibrator_max_sep_deg": math.degrees(settings.calibrator_max_sep_rad),
         "calibrator_max_dmag": settings.calibrator_max_dmag,
         "calibrator_min_visibility": settings.calibrator_min_visibility,
-        "wavelength_um": settings.wavelength_m * 1e6,
         "calibrator_copies": float(settings.calibrator_copies),
         "carriage_weight": settings.carriage_weight,
         "value_per_hour": float(settings.value_per_hour),

@@ -21,7 +21,8 @@ SOURCE = "plan"
 
 @dataclass(frozen=True)
 class Entry:
-    """One visit of the plan (planned or done), as written."""
+    """One visit of the plan (planned or done), as written (``mode``, ``wavelength_um``
+    and ``bandwidth_um`` None when not stated)."""
 
     id: str
     target: str
@@ -37,6 +38,9 @@ class Entry:
     end_utc_s: float
     opd_start_m: dict[str, float]
     opd_end_m: dict[str, float]
+    mode: str | None = None
+    wavelength_um: float | None = None
+    bandwidth_um: float | None = None
 
 
 @dataclass(frozen=True)
@@ -94,6 +98,10 @@ class _Times:
             return math.nan
 
 
+def _optional(value: Any) -> float | None:
+    return None if value is None else float(value)
+
+
 def _entry(v: dict[str, Any], where: str, utc: _Times) -> Entry:
     return Entry(
         id=v["id"], target=v["target"], kind=v["kind"], number=int(v["number"]),
@@ -103,6 +111,8 @@ def _entry(v: dict[str, Any], where: str, utc: _Times) -> Entry:
         end_utc_s=utc(v["end_utc"], f"{where}.end_utc"),
         opd_start_m={k: float(x) for k, x in v["opd_start_m"].items()},
         opd_end_m={k: float(x) for k, x in v["opd_end_m"].items()},
+        mode=v.get("mode"), wavelength_um=_optional(v.get("wavelength_um")),
+        bandwidth_um=_optional(v.get("bandwidth_um")),
     )  # fmt: skip
 
 

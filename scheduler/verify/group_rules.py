@@ -7,12 +7,8 @@ common practice, no source):
   end of one to the start of the next);
 - ``bracket``: each planned science visit that needs calibrators has a suitable
   calibrator visit (planned or done) ending at most ``calibrator_gap`` before it starts,
-  and one starting at most ``calibrator_gap`` after it ends (CAL-SCI-CAL).  A calibrator
-  suits a science target when it is within ``calibrator_max_sep`` of it (the angle
-  between the catalog positions), within ``calibrator_max_dmag`` when both magnitudes
-  are known, and, when its diameter is known, its uniform-disk visibility is at least
-  ``calibrator_min_visibility`` on the longest baseline of the lines in use (which
-  bounds every projected baseline).
+  and one starting at most ``calibrator_gap`` after it ends (CAL-SCI-CAL); which
+  calibrator suits which target: :mod:`scheduler.verify.calibrators`.
 
 The kind of a target is the catalog's; visits of targets missing from the catalog are
 left to rule ``catalog``.
@@ -20,15 +16,15 @@ left to rule ``catalog``.
 
 from __future__ import annotations
 
-import math
 from collections import defaultdict
 
+from scheduler.model.array import ArrayModel
 from scheduler.model.plan import PlanSettings
 from scheduler.model.targets import Targets
+from scheduler.verify.calibrators import Suitability
 from scheduler.verify.document import Entry
-from scheduler.verify.geometry import angular_distance, disk_visibility
 from scheduler.verify.report import Violation
-from scheduler.verify.tolerances import CAL_SEP_TOL_RAD, DMAG_TOL, TIME_TOL_S, VIS_TOL
+from scheduler.verify.tolerances import TIME_TOL_S
 
 
 def _by_target(visits: tuple[Entry, ...], done: tuple[Entry, ...],
@@ -74,30 +70,20 @@ def separation_violations(visits: tuple[Entry, ...], done: tuple[Entry, ...],
     return found
 
 
-def suits(sci: int, cal: int, targets: Targets, settings: PlanSettings,
-          baseline_m: float) -> bool:  # fmt: skip
-    """Does calibrator ``cal`` suit science target ``sci`` (catalog indices)?"""
-    t = targets
-    sep = float(angular_distance(t.ra_rad[sci], t.dec_rad[sci], t.ra_rad[cal], t.dec_rad[cal]))
-    if sep > settings.calibrator_max_sep_rad + CAL_SEP_TOL_RAD:
-        return False
-    m_sci, m_cal = float(t.mag[sci]), float(t.mag[cal])
-    if not (math.isnan(m_sci) or math.isnan(m_cal)):
-        if abs(m_sci - m_cal) > settings.calibrator_max_dmag + DMAG_TOL:
-            return False
-    theta = float(t.diameter_rad[cal])
-    if math.isnan(theta):
-        return True
-    visibility = disk_visibility(theta, baseline_m, settings.wavelength_m)
-    return visibility >= settings.calibrator_min_visibility - VIS_TOL
+def _reasons(near: list[tuple[int, Entry]], why: Suitability, i: int) -> str:
+    """Why the calibrator visits ``near`` do not suit science target ``i``, in words."""
+    texts = sorted({f"{c.target}: {why(i, j)}" for j, c in near})
+    return f" ({'; '.join(texts)})" if texts else ""
 
 
 def bracket_violations(visits: tuple[Entry, ...], done: tuple[Entry, ...], targets: Targets,
-                       settings: PlanSettings, baseline_m: float) -> list[Violation]:  # fmt: skip
+                       settings: PlanSettings, array: ArrayModel,
+                       baseline_m: float) -> list[Violation]:  # fmt: skip
     """Planned science visits that lack a suitable calibrator before or after."""
     known = [v for v in (*visits, *done) if v.target in targets.names]
     cals = [(targets.index(c.target), c) for c in known if not targets.is_science[
         targets.index(c.target)]]  # fmt: skip
+    why = Suitability(targets, array, settings, baseline_m)
     gap = settings.calibrator_gap_s + TIME_TOL_S
     found = []
     for v in visits:
@@ -106,11 +92,11 @@ def bracket_violations(visits: tuple[Entry, ...], done: tuple[Entry, ...], targe
         i = targets.index(v.target)
         if not (targets.is_science[i] and targets.needs_calibrator[i]):
             continue
-        good = [c for j, c in cals if suits(i, j, targets, settings, baseline_m)]
-        before = any(-TIME_TOL_S <= v.start_s - c.end_s <= gap for c in good)
-        after = any(-TIME_TOL_S <= c.start_s - v.end_s <= gap for c in good)
-        for ok, side in ((before, "before it starts"), (after, "after it ends")):
-            if not ok:
+        before = [(j, c) for j, c in cals if -TIME_TOL_S <= v.start_s - c.end_s <= gap]
+        after = [(j, c) for j, c in cals if -TIME_TOL_S <= c.start_s - v.end_s <= gap]
+        for near, side in ((before, "before it starts"), (after, "after it ends")):
+            if not any(why(i, j) is None for j, _ in near):
                 found.append(Violation("bracket", v.id, f"no suitable calibrator visit within "
-                                       f"{settings.calibrator_gap_s / 60.0:.0f} min {side}"))
+                                       f"{settings.calibrator_gap_s / 60.0:.0f} min {side}"
+                                       f"{_reasons(near, why, i)}"))  # fmt: skip
     return found

@@ -22,6 +22,11 @@ RULES: tuple[str, ...] = (
     "altitude",  # below the minimum or above the maximum altitude
     "horizon",  # below a station's horizon mask
     "time_window",  # a time-critical target outside its window
+    "wind",  # pointing into a wind above the speed limit
+    "visibility",  # at some instant no baseline measures the target (over-resolved)
+    "mode",  # a visit's mode, wavelength or bandwidth is not its target's mode's
+    "brightness",  # a target fainter than its mode's limits under the conditions
+    "conditions",  # the plan's conditions block differs from the conditions given
     "delay",  # no common constant K puts every line inside its range
     "carriage_range",  # a stated carriage path outside its line's range, or a line missing
     "carriage_geometry",  # stated carriage paths that disagree with the geometry

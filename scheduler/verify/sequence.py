@@ -5,11 +5,15 @@
   file lists them in time order;
 - ``transition``: before each visit there is time for the longer of the telescope slew
   (``max(|d az| the shortest way round, |d alt|) / slew_rate + settle``) and the carriage
-  move (``max_i |x_start,i(B) - x_end,i(A)| / rate_i + settle``), then the acquisition.
-  The first visit of a plan starts at least one acquisition after the night starts; the
-  first visit of a replan leaves from ``start_state`` (the pointing target where it
-  stood then, half a turn of slew when unknown; the logged carriage paths, a line with
-  no logged path crossing its whole range);
+  move (``max_i |x_start,i(B) - x_end,i(A)| / rate_i + settle``), then the acquisition,
+  then the ``setup_s`` of B's observing mode when A's catalog mode was another.  The
+  first visit of a plan starts at least one acquisition after the night starts (the
+  night's first mode is set up before it); the first visit of a replan leaves from
+  ``start_state`` (the pointing target where it stood then, half a turn of slew when
+  unknown; the logged carriage paths, a line with no logged path crossing its whole
+  range; the set-up unless the pointing target's mode is B's, charged for an unknown
+  pointing when the array has more than one mode).  A visit's stated ``setup_s`` is
+  not read: the verifier works the set-up out itself;
 - ``closure``: no planned visit overlaps a logged closure;
 - ``replan_start``: nothing starts before the replan's ``now`` or its start state;
 - ``done``: no done visit is planned again.
@@ -18,6 +22,7 @@
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 from scheduler.model.array import Overheads
 from scheduler.model.times import iso_utc
@@ -80,21 +85,28 @@ def _between(a: Entry, ta: Track, b: Entry, tb: Track, lines: LineSet,
     return slew, move_s(x_a, x_b, lines.rate_m_s) + over.settle_s
 
 
-def _short(b: Entry, label: str, gap: float, slew: float, carriage: float,
+SetUp = Callable[[str | None, str], float]
+"""Set-up seconds before a visit of a target (second) after one of another (first; None:
+unknown)."""
+
+
+def _short(b: Entry, label: str, gap: float, parts: tuple[float, float], setup: float,
            over: Overheads) -> list[Violation]:  # fmt: skip
-    need = max(slew, carriage) + over.acquisition_s
+    slew, carriage = parts
+    need = max(slew, carriage) + over.acquisition_s + setup
     if gap >= need - TIME_TOL_S:
         return []
+    mode = f" and the mode set-up ({setup:.0f} s)" if setup > 0.0 else ""
     return [Violation("transition", b.id, f"{gap:.1f} s after {label}, but the slew "
-                      f"({slew:.1f} s) or carriage move ({carriage:.1f} s) and the acquisition "
-                      f"({over.acquisition_s:.0f} s) need {need:.1f} s")]  # fmt: skip
+                      f"({slew:.1f} s) or carriage move ({carriage:.1f} s), the acquisition "
+                      f"({over.acquisition_s:.0f} s){mode} need {need:.1f} s")]  # fmt: skip
 
 
 def transition_violations(plan: PlanDoc, order: list[int], lines: LineSet, over: Overheads,
-                          sky: Sky) -> list[Violation]:  # fmt: skip
+                          sky: Sky, setup: SetUp) -> list[Violation]:  # fmt: skip
     """Each gap before a planned visit (``order``: indices into ``plan.visits`` in time
-    order) against the transition it needs.  Visits without a sky track (rejected by
-    other rules) are skipped with the gaps around them."""
+    order) against the transition it needs (``setup``: the mode set-up).  Visits without
+    a sky track (rejected by other rules) are skipped with the gaps around them."""
     found: list[Violation] = []
     for k, j in enumerate(order):
         b, tb = plan.visits[j], sky.tracks.get(j)
@@ -104,11 +116,13 @@ def transition_violations(plan: PlanDoc, order: list[int], lines: LineSet, over:
             a, ta = plan.visits[order[k - 1]], sky.tracks.get(order[k - 1])
             if ta is not None and b.start_s >= a.end_s - TIME_TOL_S:
                 parts = _between(a, ta, b, tb, lines, over)
-                found += _short(b, a.id, b.start_s - a.end_s, *parts, over) if parts else []
+                found += _short(b, a.id, b.start_s - a.end_s, parts, setup(a.target, b.target),
+                                over) if parts else []  # fmt: skip
         elif plan.start_state is not None:
-            parts = _from_state(plan.start_state, b, tb, lines, over, sky)
-            gap = b.start_s - plan.start_state.utc_s
-            found += _short(b, "the start state", gap, *parts, over) if parts else []
+            state = plan.start_state
+            parts = _from_state(state, b, tb, lines, over, sky)
+            found += _short(b, "the start state", b.start_s - state.utc_s, parts,
+                            setup(state.pointing, b.target), over) if parts else []  # fmt: skip
         elif b.start_s < plan.night_start_s + over.acquisition_s - TIME_TOL_S:
             after = b.start_s - plan.night_start_s
             found.append(Violation("transition", b.id, f"starts {after:.1f} s after the night "

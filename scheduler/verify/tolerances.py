@@ -31,6 +31,15 @@ BODY_SEP_TOL_RAD = 30.0 * ARCSEC_RAD
 interpolates both bodies between sparse nodes)."""
 CAL_SEP_TOL_RAD = 1e-9
 """Calibrator-to-target distance: both positions come exactly from the catalog."""
+WIND_TOL_RAD = 60.0 * ARCSEC_RAD
+"""A sample's azimuth against the wind's forbidden sector: the planner's directions agree
+with astropy's to about an arcsecond, which near the 87 deg altitude limit moves the
+azimuth by up to 1/cos(87 deg), about 19 times as much."""
+VIS_DIR_TOL_RAD = 15.0 * ARCSEC_RAD
+"""Projected baselines are taken as if each direction stood this much nearer the
+baseline (the shortest length it allows, so the most usable): the planner's directions
+agree with astropy's to about an arcsecond, and 15 arcsec is one second of the Earth's
+turn."""
 COORD_TOL_DEG = 1e-6
 """A visit's ra_deg/dec_deg against the catalog (3.6 mas: written as full floats)."""
 
@@ -59,6 +68,21 @@ REL_TOL = 1e-6
 ZERO_TOL = 1e-12
 """Absolute tolerance beside REL_TOL, for values that are zero."""
 VIS_TOL = 1e-9
-"""A calibrator's uniform-disk visibility against the minimum."""
+"""A calibrator's disk visibility against the minimum."""
+CAL_ERROR_TOL = 1e-4
+"""A calibrator's sigma(V^2) against ``calibrator_error_max`` (0.5 % of 0.02): the
+planner samples fewer projected lengths and takes a finite difference for the slope."""
+CAL_ERROR_SAMPLES = 513
+"""Projected lengths, evenly from 0 to the longest baseline, at which a calibrator's
+sigma(V^2) is evaluated."""
+MAG_TOL = 1e-6
+"""A target's magnitude against its mode's limit under the conditions (the same
+arithmetic on the same inputs: only rounding)."""
+MODE_TOL_UM = 1e-5
+"""A visit's wavelength_um and bandwidth_um against its mode's (plans round them to
+1e-6 um)."""
+CONDITIONS_TOL = 1e-3
+"""The plan's conditions block against the conditions given, in the block's units
+(arcsec, ms, m/s, deg; plans round them to 1e-4)."""
 DMAG_TOL = 1e-9
 """A calibrator's magnitude difference against the maximum."""

@@ -10,6 +10,9 @@ Moran & Swenson, section 4.1):
 - ``altitude``: between ``min_altitude`` and ``max_altitude`` at every sample;
 - ``horizon``: above the horizon mask of every station in use;
 - ``time_window``: a time-critical target inside its catalog window;
+- ``wind``: with the wind above the array's ``wind_speed_max_m_s`` and its direction
+  known, no sample points within ``wind_halfwidth`` of the azimuth it comes from (the
+  shortest way round);
 - ``delay``: one common K puts every line inside its range at every sample;
 - ``carriage_range``: ``opd_start_m`` and ``opd_end_m`` name exactly the lines in use,
   and every value lies inside its line's range;
@@ -25,6 +28,7 @@ import math
 import numpy as np
 
 from scheduler.model.array import Limits
+from scheduler.model.conditions import Conditions
 from scheduler.model.targets import Targets
 from scheduler.model.times import iso_utc
 from scheduler.verify.declared import LineSet
@@ -32,6 +36,7 @@ from scheduler.verify.document import Entry
 from scheduler.verify.geometry import (
     altaz_from_enu,
     angle_between,
+    azimuth_step,
     implied_k,
     k_span,
     mask_altitude,
@@ -46,6 +51,7 @@ from scheduler.verify.tolerances import (
     RANGE_TOL_M,
     SUN_ALT_TOL_RAD,
     TIME_TOL_S,
+    WIND_TOL_RAD,
 )
 
 KEYS = ("opd_start_m", "opd_end_m")
@@ -179,6 +185,20 @@ def _window(v: Entry, targets: Targets) -> list[Violation]:
         return []
     return [Violation("time_window", v.id, f"{iso_utc(v.start_s)}-{iso_utc(v.end_s)} is outside "
                       f"the window {iso_utc(lo)}-{iso_utc(hi)} of {v.target}")]  # fmt: skip
+
+
+def wind_violations(v: Entry, tr: Track, lim: Limits, c: Conditions) -> list[Violation]:
+    """Samples pointing into a wind stronger than the limit."""
+    if c.wind_from_rad is None or not c.wind_speed_m_s > lim.wind_speed_max_m_s:
+        return []
+    off = azimuth_step(tr.az, c.wind_from_rad)
+    into = off < lim.wind_halfwidth_rad - WIND_TOL_RAD
+    if not into.any():
+        return []
+    return [Violation("wind", v.id, f"points {_deg(float(off.min()))} from the azimuth the "
+                      f"wind ({c.wind_speed_m_s:g} m/s, above {lim.wind_speed_max_m_s:g}) comes "
+                      f"from, {_deg(c.wind_from_rad % (2.0 * math.pi))}, within "
+                      f"{_deg(lim.wind_halfwidth_rad)}, from {_first(into, tr)}")]  # fmt: skip
 
 
 def sky_violations(v: Entry, tr: Track, targets: Targets, lim: Limits, lines: LineSet,
