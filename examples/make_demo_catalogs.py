@@ -56,8 +56,18 @@ SCI_NOTES = ["", "", "suspected close companion", "variable; check recent bright
              "fast rotator", "dusty envelope", "repeat of an earlier epoch", "faint wide companion"]
 CAL_NOTES = ["", "", "single star; stable", "check for a faint companion", "well measured size"]
 COLUMNS = ["name", "ra", "dec", "kind", "program", "priority", "duration_min", "visits",
-           "min_separation_min", "needs_calibrator", "mag", "diameter_mas", "window_start_utc",
+           "min_separation_min", "needs_calibrator", "mode", "mag_H", "mag_K", "mag_V",
+           "diameter_mas", "diameter_err_mas", "limb_darkening", "window_start_utc",
            "window_end_utc", "notes"]
+# observing modes of the fictional beam combiner (invented values)
+MODES = [
+    {"name": "near-ir-low", "wavelength_um": 1.65, "bandwidth_um": 0.30, "tracking_band": "H",
+     "tracking_limit_mag": 7.5, "guiding_band": "V", "guiding_limit_mag": 12.0,
+     "reference_seeing_arcsec": 0.8, "reference_coherence_ms": 4.0, "setup_s": 600.0},
+    {"name": "near-ir-k", "wavelength_um": 2.2, "bandwidth_um": 0.40, "tracking_band": "K",
+     "tracking_limit_mag": 7.0, "guiding_band": "V", "guiding_limit_mag": 11.5,
+     "reference_seeing_arcsec": 0.8, "reference_coherence_ms": 4.0, "setup_s": 600.0},
+]
 
 
 def unit_vector(ha, dec, lat):
@@ -200,7 +210,9 @@ def write_array_toml(path):
            "[site]", 'name = "Sablewind Plateau (fictional)"', f"latitude_deg = {LAT_DEG}",
            f"longitude_deg = {LON_DEG}  # east positive", f"height_m = {HEIGHT_M}", "",
            "[limits]", f"min_altitude_deg = {MIN_ALT_DEG}", "max_altitude_deg = 87.0",
-           "sun_altitude_max_deg = -12.0", "moon_separation_min_deg = 15.0", "",
+           "sun_altitude_max_deg = -12.0", "moon_separation_min_deg = 15.0",
+           "wind_speed_max_m_s = 12.0  # above it, no pointing within wind_halfwidth_deg",
+           "wind_halfwidth_deg = 45.0  # of the azimuth the wind comes from", "",
            "[overheads]", "acquisition_s = 480.0", "slew_rate_deg_s = 1.5", "settle_s = 5.0"]
     for name, (e, n, u, a) in STATIONS.items():
         out += ["", "[[stations]]", f'name = "{name}"', f"east_m = {e}", f"north_m = {n}",
@@ -211,6 +223,8 @@ def write_array_toml(path):
     for name, (lo, hi, rate) in DELAY_LINES.items():
         out += ["", "[[delay_lines]]", f'name = "{name}"', f"opd_min_m = {lo}",
                 f"opd_max_m = {hi}", f"max_rate_m_s = {rate}"]
+    for mode in MODES:
+        out += ["", "[[modes]]"] + [f"{k} = {v!r}".replace("'", '"') for k, v in mode.items()]
     for name, (feeds, offsets) in CONFIGS.items():
         out += ["", "[[configurations]]", f'name = "{name}"',
                 "feeds = { " + ", ".join(f'"{k}" = "{v}"' for k, v in feeds.items()) + " }"]
@@ -225,7 +239,7 @@ def write_targets_csv(path, rows, rng):
     with path.open("w", newline="") as f:
         f.write("# FICTIONAL targets and calibrators, invented for the opdplan demo.\n"
                 "# Regenerate with: python examples/make_demo_catalogs.py\n")
-        w = csv.DictWriter(f, fieldnames=COLUMNS, lineterminator="\n")
+        w = csv.DictWriter(f, fieldnames=COLUMNS, lineterminator="\n", extrasaction="ignore")
         w.writeheader()
         for i, r in enumerate(rows):
             r = dict(r, needs_calibrator=str(r["needs_calibrator"]).lower())
@@ -237,11 +251,59 @@ def write_targets_csv(path, rows, rng):
     return len(sexa)
 
 
+def add_photometry(science, cals):
+    """Modes, per-band magnitudes, diameter errors and limb darkening, drawn from a second
+    generator so that everything drawn before stays as it was.  A fifth of the science
+    targets use the K mode and get calibrators of their own; a few are too faint for
+    fringe tracking or for guiding (to show the reasons), and a third of the others are
+    near the guiding limit, so that worse seeing takes them out."""
+    rng = np.random.default_rng(2028)
+    for r in science + cals:
+        r.update(mode="near-ir-low", mag_H=r["mag"], diameter_err_mas="", limb_darkening="",
+                 mag_K=round(r["mag"] - rng.uniform(0.1, 0.8), 1),
+                 mag_V=round(r["mag"] + rng.uniform(0.5, 3.5), 1))  # fmt: skip
+    for c in cals:
+        c["diameter_err_mas"] = round(c["diameter_mas"] * rng.uniform(0.03, 0.06), 3)
+    needing = [s for s in science if s["needs_calibrator"] and not s["window_start_utc"]]
+    k_mode = [needing[k] for k in rng.choice(len(needing), size=len(needing) // 5, replace=False)]
+    extra = []
+    for s in k_mode:
+        s["mode"] = "near-ir-k"
+        dist, pa = rng.uniform(3.0, 7.0), rng.uniform(0.0, 360.0)
+        ra, dec = offset_point(s["ra"], s["dec"], dist, pa)
+        mag = round(float(s["mag"] + rng.uniform(-0.8, 0.8)), 1)
+        extra.append(dict(ra=ra, dec=dec, kind="calibrator", program="", priority=0,
+                          duration_min=int(rng.choice([10, 12])), visits=1,
+                          min_separation_min=0, needs_calibrator=False, mode="near-ir-k",
+                          mag=mag, mag_H=mag, mag_K=round(mag - rng.uniform(0.1, 0.6), 1),
+                          mag_V=round(mag + rng.uniform(0.5, 2.5), 1),
+                          diameter_mas=round(rng.uniform(0.1, 0.3), 2), diameter_err_mas=0.01,
+                          limb_darkening="", window_start_utc="", window_end_utc="",
+                          notes="calibrator for the K mode"))  # fmt: skip
+    for s in rng.choice(science, size=6, replace=False):
+        s["limb_darkening"] = round(rng.uniform(0.2, 0.5), 2)
+    plain = [s for s in science if s["mode"] == "near-ir-low" and not s["window_start_utc"]]
+    faint = rng.choice(len(plain), size=5, replace=False)
+    for k in faint[:3]:  # too faint for the fringe tracker in the H mode
+        plain[k].update(mag_H=round(rng.uniform(7.8, 8.6), 1), notes="faint; check the limit")
+        plain[k]["mag"] = plain[k]["mag_H"]
+    for k in faint[3:]:  # too faint for guiding
+        plain[k].update(mag_V=round(rng.uniform(12.4, 13.0), 1), notes="red; faint in V")
+    for j, c in enumerate(sorted(extra, key=lambda c: c["ra"]), start=1):
+        c["name"] = f"Cal-Kay-{j:02d}"
+    marginal = [k for k in range(len(plain)) if k not in set(faint.tolist())]
+    for k in rng.choice(marginal, size=len(marginal) // 3, replace=False):
+        # bright enough for guiding in the reference seeing, not in a much worse one
+        plain[k].update(mag_V=round(rng.uniform(11.2, 11.9), 1), notes="marginal in V")
+    return extra
+
+
 def main():
     rng = np.random.default_rng(2027)
     science = make_science(rng)
     cals = make_calibrators(rng, science)
     assert len(cals) >= 44 and all(covered(s, cals) for s in science if s["needs_calibrator"])
+    cals = cals + add_photometry(science, cals)
     OUT.mkdir(exist_ok=True)
     write_array_toml(OUT / "demo_array.toml")
     n_sexa = write_targets_csv(OUT / "demo_targets.csv", science + cals, rng)

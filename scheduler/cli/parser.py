@@ -51,11 +51,23 @@ def value_options(sp: argparse.ArgumentParser) -> None:
                     help="a higher priority wins over any amount of lower ones")
 
 
+def condition_options(sp: argparse.ArgumentParser) -> None:
+    """Tonight's conditions (defaults: each mode's reference; no wind)."""
+    sp.add_argument("--seeing", type=float, metavar="ARCSEC",
+                    help="seeing, arcsec (default: each mode's reference)")
+    sp.add_argument("--coherence-ms", type=float, metavar="MS",
+                    help="atmospheric coherence time tau0, ms (default: each mode's reference)")
+    sp.add_argument("--wind-speed", type=float, metavar="M_S", help="wind speed, m/s")
+    sp.add_argument("--wind-from", type=float, metavar="DEG",
+                    help="azimuth the wind comes from, deg (north through east)")
+
+
 def _plan_commands(sub: argparse._SubParsersAction) -> None:
     pl = _sub(sub, "plan", "tonight's queue, verified independently",
               f"{DEMO} --night 2027-04-18 --out plan.json")  # fmt: skip
     _night_options(pl)
     _solver_options(pl, 20.0)
+    condition_options(pl)
     pl.add_argument("--out", help="write the plan here (JSON, schema opdplan-plan/1)")
     pl.add_argument("--csv", help="write the visits here as CSV")
     pl.add_argument("--votable", help="write the visits here as an IVOA VOTable")
@@ -66,6 +78,10 @@ def _plan_commands(sub: argparse._SubParsersAction) -> None:
     v.add_argument("--array", required=True, help="array file (TOML)")
     v.add_argument("--targets", required=True, help="target catalog")
     value_options(v)
+    v.add_argument("--seeing", type=float, metavar="ARCSEC", help="seeing observed, arcsec")
+    v.add_argument("--coherence-ms", type=float, metavar="MS", help="coherence time tau0, ms")
+    v.add_argument("--wind-speed", type=float, metavar="M_S", help="wind speed, m/s")
+    v.add_argument("--wind-from", type=float, metavar="DEG", help="wind from azimuth, deg N to E")
     rp = _sub(sub, "replan", "the rest of the night from the current state",
               "--plan plan.json --log night.jsonl --now 2027-04-19T00:45:00Z --out new.json")
     rp.add_argument("--plan", required=True, help="the plan made earlier (JSON)")
@@ -106,6 +122,17 @@ def _log_command(sub: argparse._SubParsersAction) -> None:
         which.add_argument("--station", help="station name")
         which.add_argument("--delay-line", help="delay line name")
         e.add_argument("--at", help="when, ISO 8601 UTC (default: now)")
+    e = event("conditions", "the seeing, coherence time and wind from now on",
+              "--seeing 1.2 --coherence-ms 2.5 --wind-speed 14 --wind-from 300")  # fmt: skip
+    e.add_argument("--seeing", dest="seeing_arcsec", type=float, metavar="ARCSEC",
+                   help="seeing, arcsec")
+    e.add_argument("--coherence-ms", dest="coherence_ms", type=float, metavar="MS",
+                   help="atmospheric coherence time tau0, ms")
+    e.add_argument("--wind-speed", dest="wind_speed_m_s", type=float, metavar="M_S",
+                   help="wind speed, m/s")
+    e.add_argument("--wind-from", dest="wind_from_deg", type=float, metavar="DEG",
+                   help="azimuth the wind comes from, deg")
+    e.add_argument("--at", help="when, ISO 8601 UTC (default: now)")
     e = event("carriages", "where the carriages are", "--at 2027-04-19T00:59:00Z --opd rail-1=60")
     e.add_argument("--at", required=True, help="when, ISO 8601 UTC")
     e.add_argument("--opd", nargs="+", required=True, metavar="LINE=METRES",

@@ -61,8 +61,8 @@ def obsplan_table(doc: dict[str, Any], time_critical: set[str]) -> Any:
     from astropy.table import Table
 
     visits = doc["visits"]
-    rules = doc.get("rules", {})
-    wavelength = float(rules.get("wavelength_um", 1.65)) * 1e-6
+    wavelength = np.array([float(v.get("wavelength_um", 1.65)) for v in visits]) * 1e-6
+    band = np.array([float(v.get("bandwidth_um", 0.0)) for v in visits]) * 1e-6
     stations = np.array([[s["east_m"], s["north_m"], s["up_m"]] for s in doc["stations"]])
     longest = float(np.max(np.linalg.norm(stations[:, None] - stations[None], axis=-1)))
     now = _mjd(doc["created_utc"]) if "created_utc" in doc else _mjd(doc["night"]["start_utc"])
@@ -79,14 +79,15 @@ def obsplan_table(doc: dict[str, Any], time_critical: set[str]) -> Any:
     t["obs_collection"] = [v["program"] or "calibration" for v in visits]
     t["s_ra"] = [v["ra_deg"] for v in visits] * u.deg
     t["s_dec"] = [v["dec_deg"] for v in visits] * u.deg
-    t["s_resolution"] = np.full(len(visits), wavelength / longest * ARCSEC_PER_RAD) * u.arcsec
+    t["s_resolution"] = wavelength / longest * ARCSEC_PER_RAD * u.arcsec
     t["t_min"] = [_mjd(v["start_utc"]) for v in visits] * u.day
     t["t_max"] = [_mjd(v["end_utc"]) for v in visits] * u.day
     t["t_plan_exptime"] = [v["end_s"] - v["start_s"] for v in visits] * u.s
-    t["em_min"] = np.full(len(visits), wavelength) * u.m
-    t["em_max"] = np.full(len(visits), wavelength) * u.m
+    t["em_min"] = (wavelength - band / 2) * u.m
+    t["em_max"] = (wavelength + band / 2) * u.m
     t["facility_name"] = [doc["site"]["name"]] * len(visits)
-    t["instrument_name"] = [f"configuration {doc['configuration']}"] * len(visits)
+    t["instrument_name"] = [f"configuration {doc['configuration']}, mode {v.get('mode', '')}"
+                            for v in visits]  # fmt: skip
     t["category"] = ["fixed" if v["target"] in time_critical else "flexible" for v in visits]
     t["priority"] = np.array([prio(v) for v in visits], dtype=np.int32)
     t["execution_status"] = ["Scheduled"] * len(visits)

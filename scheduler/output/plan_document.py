@@ -22,6 +22,7 @@ from scheduler.geometry.delay import line_paths
 from scheduler.inputs.plan_file import SCHEMA
 from scheduler.inputs.provenance import input_ref
 from scheduler.model.array import ArrayModel
+from scheduler.model.conditions import Conditions
 from scheduler.model.plan import Plan, PlanSettings, Start, Visit
 from scheduler.model.problem import NightProblem
 from scheduler.model.times import iso_utc, iso_utc_ms
@@ -39,12 +40,23 @@ def rules_of(settings: PlanSettings) -> dict[str, float | int | bool]:
         "calibrator_max_sep_deg": float(np.degrees(settings.calibrator_max_sep_rad)),
         "calibrator_max_dmag": settings.calibrator_max_dmag,
         "calibrator_min_visibility": settings.calibrator_min_visibility,
-        "wavelength_um": settings.wavelength_m * 1e6,
         "calibrator_copies": settings.calibrator_copies,
         "carriage_weight": settings.carriage_weight,
         "value_per_hour": settings.value_per_hour,
         "strict_priority": settings.strict_priority,
     }
+
+
+def conditions_entry(c: Conditions) -> dict[str, float | None]:
+    """The conditions a plan assumed (None: each mode's reference; no wind)."""
+    return {
+        "seeing_arcsec": None if c.seeing_rad is None else round(float(np.degrees(c.seeing_rad))
+                                                                * 3600.0, 4),
+        "coherence_ms": None if c.coherence_s is None else round(c.coherence_s * 1e3, 4),
+        "wind_speed_m_s": c.wind_speed_m_s,
+        "wind_from_deg": None if c.wind_from_rad is None else round(
+            float(np.degrees(c.wind_from_rad)) % 360.0, 4),
+    }  # fmt: skip
 
 
 def _paths(lines: tuple[str, ...], values: tuple[float, ...]) -> dict[str, float]:
@@ -56,6 +68,9 @@ def visit_entry(problem: NightProblem, v: Visit) -> dict[str, Any]:
     return {
         "id": v.id, "target": t.names[v.target], "kind": str(v.kind), "number": v.number,
         "program": t.program[v.target], "priority": float(t.priority[v.target]),
+        "mode": problem.mode_of(v.target).name,
+        "wavelength_um": round(problem.mode_of(v.target).wavelength_m * 1e6, 6),
+        "bandwidth_um": round(problem.mode_of(v.target).bandwidth_m * 1e6, 6),
         "ra_deg": float(np.degrees(t.ra_rad[v.target])),
         "dec_deg": float(np.degrees(t.dec_rad[v.target])),
         "start_utc": iso_utc_ms(v.start_s), "end_utc": iso_utc_ms(v.end_s),
@@ -64,7 +79,9 @@ def visit_entry(problem: NightProblem, v: Visit) -> dict[str, Any]:
         "carriage_s": round(v.carriage_s, 3), "acquisition_s": v.acquisition_s,
         "altitude_deg": [round(float(np.degrees(a)), 3) for a in v.alt_range_rad],
         "opd_start_m": _paths(lines, v.opd_start_m), "opd_end_m": _paths(lines, v.opd_end_m),
-        "calibrates": list(v.calibrates),
+        "calibrates": list(v.calibrates), "setup_s": round(v.setup_s, 3),
+        "weak_baselines": [{"baseline": b, "squared_visibility_min": v2}
+                           for b, v2 in v.weak_baselines],
     }  # fmt: skip
 
 
@@ -97,8 +114,11 @@ def plan_document(problem: NightProblem, array: ArrayModel, plan: Plan,
                   "end_utc": iso_utc_ms(night.end_s)},
         **_array_part(problem, array),
         "visits": [visit_entry(problem, v) for v in plan.visits],
-        "unscheduled": [{"target": n, "reason": r} for n, r in plan.unscheduled],
+        "unscheduled": [{"target": u.target, "reason": u.reason, "detail": u.detail}
+                        for u in plan.unscheduled],
         "rules": rules_of(settings),
+        "conditions": conditions_entry(problem.conditions),
+        "backups": [{"hour_utc": iso_utc(h), "targets": list(names)} for h, names in plan.backups],
         "inputs": {"array": input_ref(array.source), "targets": input_ref(problem.targets.source)},
         "summary": plan.summary.as_dict(),
     }  # fmt: skip

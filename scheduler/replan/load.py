@@ -68,7 +68,8 @@ def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | 
         src = _source(doc, plan_path, "array", array_path, g)
         array = g.take(load_array, src) if src else None
         src = _source(doc, plan_path, "targets", targets_path, g)
-        targets = g.take(load_targets, src) if src else None
+        modes = [m.name for m in array.modes] if array is not None else None
+        targets = g.take(load_targets, src, modes) if src else None
         terms = LogTerms.of_plan(doc, plan_path)
         if array is not None and doc["configuration"] not in {c.name for c in array.configurations}:
             g.add(plan_path, "configuration", f"{doc['configuration']!r} is not a configuration "
@@ -86,7 +87,7 @@ def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | 
     if len(beams) < 2:
         raise InputError(Problem(log_path, "", f"with {sorted(sit.out)} out, fewer than two "
                                  "delay lines are left: no baseline to observe with"))  # fmt: skip
-    problem = night_problem(array, beams, targets, night)
-    full = night_problem(array, array.beams(doc["configuration"]), targets, night) if sit.out \
-        else problem  # fmt: skip
+    problem = night_problem(array, beams, targets, night, conditions=sit.conditions)
+    full = night_problem(array, array.beams(doc["configuration"]), targets, night,
+                         conditions=sit.conditions) if sit.out else problem  # fmt: skip
     return Replan(array, problem, origin_of(problem, doc, sit), doc, sit, full)

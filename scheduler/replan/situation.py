@@ -9,11 +9,13 @@ a closure covered them).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+import math
+from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
 
+from scheduler.model.conditions import Conditions
 from scheduler.model.log import Event, LogRecord
 from scheduler.model.plan import Candidate, Start
 from scheduler.model.problem import NightProblem
@@ -34,6 +36,7 @@ class Situation:
     carriages: tuple[float, dict[str, float]] | None
     pointing: str | None
     warnings: tuple[str, ...]
+    conditions: Conditions = Conditions()
 
 
 def read_situation(records: list[LogRecord], warnings: list[str], doc: dict[str, Any],
@@ -75,7 +78,38 @@ def read_situation(records: list[LogRecord], warnings: list[str], doc: dict[str,
         if v["end_s"] <= now_s and v["id"] not in done and v["id"] not in aborted and not closed:
             notes.append(f"{v['id']} was planned to end at {v['end_utc']}, before --now, but "
                          "the log does not say it was done; it may be planned again")  # fmt: skip
-    return Situation(now_s, done, closures, frozenset(out), carriages, pointing, tuple(notes))
+    return Situation(now_s, done, closures, frozenset(out), carriages, pointing, tuple(notes),
+                     conditions_at(records, doc, now_s))  # fmt: skip
+
+
+def stated_conditions(doc: dict[str, Any]) -> Conditions:
+    """The conditions a plan document assumed (its ``conditions`` block)."""
+    c = doc.get("conditions") or {}
+    seeing, tau = c.get("seeing_arcsec"), c.get("coherence_ms")
+    wind_from = c.get("wind_from_deg")
+    return Conditions(
+        seeing_rad=None if seeing is None else math.radians(seeing / 3600.0),
+        coherence_s=None if tau is None else tau * 1e-3,
+        wind_speed_m_s=float(c.get("wind_speed_m_s") or 0.0),
+        wind_from_rad=None if wind_from is None else math.radians(wind_from),
+    )  # fmt: skip
+
+
+def conditions_at(records: list[LogRecord], doc: dict[str, Any], now_s: float) -> Conditions:
+    """The previous plan's conditions, updated by every ``conditions`` record up to
+    ``now_s`` in time order (a record leaves out what it does not state)."""
+    c = stated_conditions(doc)
+    logged = sorted((r for r in records if r.event is Event.CONDITIONS
+                     and r.at_s is not None and r.at_s <= now_s), key=lambda r: r.at_s or 0.0)
+    for r in logged:
+        if r.seeing_arcsec is not None:
+            c = replace(c, seeing_rad=math.radians(r.seeing_arcsec / 3600.0))
+        if r.coherence_ms is not None:
+            c = replace(c, coherence_s=r.coherence_ms * 1e-3)
+        if r.wind_speed_m_s is not None and r.wind_from_deg is not None:
+            c = replace(c, wind_speed_m_s=r.wind_speed_m_s,
+                        wind_from_rad=math.radians(r.wind_from_deg))  # fmt: skip
+    return c
 
 
 def _done_visits(problem: NightProblem, known: dict[str, dict[str, Any]], sit: Situation):

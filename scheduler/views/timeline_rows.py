@@ -11,7 +11,7 @@ from typing import Any
 
 import numpy as np
 
-from scheduler.model.plan import Plan, PlanSummary
+from scheduler.model.plan import LeftOut, Plan, PlanSummary
 from scheduler.model.problem import NightProblem
 from scheduler.model.times import hhmm, hours_label, parse_utc
 from scheduler.views.timeline_view import NightStrip, TimelineView, VisitRow
@@ -34,14 +34,16 @@ def timeline_view(ctx: NightProblem, plan: Plan, doc: dict[str, Any]) -> Timelin
             slew_s=v.slew_s, carriage_s=v.carriage_s, acquisition_s=v.acquisition_s,
             gap_s=v.transition_s, opd_start_m=tuple(float(d["opd_start_m"][ln]) for ln in lines),
             serves=tuple(numbers[c] for c in v.calibrates if c in numbers),
+            setup_s=v.setup_s, weak=len(v.weak_baselines),
         ))  # fmt: skip
     strip = NightStrip(night.start_s, night.end_s, _hour_marks(ctx), _spans(ctx, plan, doc))
     title = (
         f"Night of {night.date} - configuration {ctx.beams.configuration} - dark "
         f"{hhmm(night.start_s)} to {hhmm(night.end_s)} UTC ({night.duration_s / 3600.0:.1f} h)"
     )
+    backups = tuple((hhmm(h), names) for h, names in plan.backups)
     return TimelineView(title, strip, rows, lines, _summary(plan.summary, plan),
-                        _grouped(plan.unscheduled), _notes(doc))  # fmt: skip
+                        _grouped(plan.unscheduled), _notes(doc), backups)  # fmt: skip
 
 
 def _done_rows(ctx: NightProblem, doc: dict[str, Any], lines: tuple[str, ...]) -> list[VisitRow]:
@@ -143,9 +145,10 @@ def _summary(s: PlanSummary, plan: Plan) -> tuple[tuple[str, str], ...]:
     return tuple(items)
 
 
-def _grouped(unscheduled: tuple[tuple[str, str], ...]) -> tuple[tuple[str, tuple[str, ...]], ...]:
-    """(reason, targets) in order of first appearance."""
+def _grouped(unscheduled: tuple[LeftOut, ...]) -> tuple[tuple[str, tuple[str, ...]], ...]:
+    """(reason, targets with their own figures) in order of first appearance."""
     groups: dict[str, list[str]] = {}
-    for name, why in unscheduled:
-        groups.setdefault(why, []).append(name)
+    for u in unscheduled:
+        groups.setdefault(u.reason, []).append(f"{u.target} ({u.detail})" if u.detail
+                                               else u.target)  # fmt: skip
     return tuple((why, tuple(names)) for why, names in groups.items())

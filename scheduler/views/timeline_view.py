@@ -65,6 +65,8 @@ class VisitRow:
     opd_start_m: tuple[float, ...]
     serves: tuple[int, ...]  # numbers of the science visits a calibrator brackets
     done: bool = False  # a replan's visit already done (times logged; no transition)
+    setup_s: float = 0.0  # another observing mode's set-up before the visit
+    weak: int = 0  # baselines that measure nothing at some instant (partly resolved)
 
 
 class TimelineView:
@@ -73,10 +75,11 @@ class TimelineView:
     def __init__(
         self, title: str, strip: NightStrip, rows: list[VisitRow], lines: tuple[str, ...],
         summary: tuple[tuple[str, str], ...], unscheduled: tuple[tuple[str, tuple[str, ...]], ...],
-        notes: tuple[str, ...] = (),
+        notes: tuple[str, ...] = (), backups: tuple[tuple[str, tuple[str, ...]], ...] = (),
     ):  # fmt: skip
         self.title, self.strip, self.rows, self.lines = title, strip, list(rows), tuple(lines)
         self.summary, self.unscheduled, self.notes = summary, unscheduled, notes
+        self.backups = backups
 
     def __rich_console__(self, console, options):
         width = options.max_width
@@ -96,6 +99,8 @@ class TimelineView:
         yield _summary_panel(self.summary, width)
         if self.unscheduled:
             yield from _unscheduled(self.unscheduled, width)
+        if self.backups:
+            yield from _backups(self.backups)
 
 
 # ---------------------------------------------------------------- the strip
@@ -198,6 +203,11 @@ def _columns(rows: list[VisitRow], lines, opts=frozenset(), drop=()):
         ("carr", [_num(r.carriage_s, 0) for r in rows], "right", None),
         ("acq", [_num(r.acquisition_s, 0) for r in rows], "right", None),
     ]  # fmt: skip
+    if any(r.setup_s > 0 for r in rows):
+        cols.append(("setup", [f"{r.setup_s:.0f}" if r.setup_s else "" for r in rows], "right",
+                     None))  # fmt: skip
+    if any(r.weak for r in rows):
+        cols.append(("weak", [str(r.weak) if r.weak else "" for r in rows], "right", "red"))
     if not any(r.done for r in rows):
         cols = [c for c in cols if c[0] != ""]
     if "gap" in opts:
@@ -259,6 +269,10 @@ def _visit_table(rows: list[VisitRow], lines, width: int) -> tuple[Table, str]:
     for k in range(len(rows)):
         table.add_row(*[col[1][k] for col in cols])
     note = "slew, carr(iage), acq(uisition): the transition before each visit, s"
+    if any(r.setup_s > 0 for r in rows):
+        note += "; setup: another observing mode's set-up, s"
+    if any(r.weak for r in rows):
+        note += "; weak: baselines that measure nothing at some instant (partly resolved)"
     if "gap" in opts:
         note += "; gap: previous end to this start, s"
     if "serves" in opts:
@@ -308,3 +322,11 @@ def _unscheduled(groups, width: int):
     for why, names in groups:
         yield Padding(Text.assemble((why, "yellow"), f" ({len(names)})"), (0, 0, 0, 2))
         yield Padding(Text(", ".join(names)), (0, 0, 0, 4))
+
+
+def _backups(hours: tuple[tuple[str, tuple[str, ...]], ...]):
+    """Per hour, what to observe instead if the conditions get worse."""
+    yield Text("Backups if the conditions get worse (seeing x1.25, coherence time x0.8):",
+               style="bold")  # fmt: skip
+    for hour, names in hours:
+        yield Padding(Text.assemble((f"{hour} ", "dim"), ", ".join(names)), (0, 0, 0, 2))

@@ -17,6 +17,9 @@ GLYPHS = {
     "delay": ("▒", "red", "delay range"),
     "moon": ("○", "cyan", "Moon"),
     "time": ("┄", "magenta", "time window / Sun"),
+    "wind": ("≈", "blue", "into the wind"),
+    "resolved": ("◌", "bright_red", "over-resolved"),
+    "faint": ("░", "grey62", "too faint"),
 }
 
 

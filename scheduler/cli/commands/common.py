@@ -4,6 +4,8 @@ input reported together."""
 
 from __future__ import annotations
 
+import argparse
+import math
 import sys
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
@@ -15,6 +17,7 @@ from typing import Any
 from rich.console import Console
 
 from scheduler.model.array import ArrayModel, Beams
+from scheduler.model.conditions import Conditions
 from scheduler.model.errors import Gather, InputError, Problem
 from scheduler.model.night import Night
 from scheduler.model.problem import NightProblem
@@ -45,10 +48,13 @@ class Inputs:
     night: Night
     warnings: tuple[str, ...] = ()
 
+    conditions: Conditions = Conditions()
+
     def problem(self) -> NightProblem:
         from scheduler.astro.problem import night_problem
 
-        return night_problem(self.array, self.beams, self.targets, self.night)
+        return night_problem(self.array, self.beams, self.targets, self.night,
+                             conditions=self.conditions)  # fmt: skip
 
 
 def check_config(array: ArrayModel | None, config: str, g: Gather) -> None:
@@ -68,13 +74,38 @@ def gather_inputs(array_path: str | Path, config: str, targets: Targets | str | 
 
     array = g.take(load_array, array_path)
     check_config(array, config, g)
+    modes = [m.name for m in array.modes] if array is not None else None
     cat = targets if isinstance(targets, Targets) or targets is None else g.take(
-        load_targets, targets)
+        load_targets, targets, modes)
     date = g.take(parse_night, night_text)
     return array, cat, date
 
 
-def finish_inputs(array: ArrayModel, config: str, targets: Targets, date: Any) -> Inputs:
+def conditions_of(args: argparse.Namespace, g: Gather) -> Conditions:
+    """The conditions given on the command line (None where not given: each mode's
+    reference), checked."""
+    values = {}
+    for option, key, lo, hi in (("--seeing", "seeing", 0.05, 10.0),
+                                ("--coherence-ms", "coherence_ms", 0.1, 1000.0),
+                                ("--wind-speed", "wind_speed", 0.0, 100.0),
+                                ("--wind-from", "wind_from", 0.0, 360.0)):  # fmt: skip
+        v = getattr(args, key, None)
+        if v is not None and not (math.isfinite(v) and lo <= v <= hi):
+            g.add(option, "", f"{v} is not in [{lo:g}, {hi:g}]")
+            v = None
+        values[key] = v
+    if values["wind_speed"] is not None and values["wind_from"] is None:
+        g.add("--wind-speed", "", "needs --wind-from DEG, the azimuth the wind comes from")
+    return Conditions(
+        seeing_rad=None if values["seeing"] is None else math.radians(values["seeing"] / 3600.0),
+        coherence_s=None if values["coherence_ms"] is None else values["coherence_ms"] * 1e-3,
+        wind_speed_m_s=values["wind_speed"] or 0.0,
+        wind_from_rad=None if values["wind_from"] is None else math.radians(values["wind_from"]),
+    )  # fmt: skip
+
+
+def finish_inputs(array: ArrayModel, config: str, targets: Targets, date: Any,
+                  conditions: Conditions | None = None) -> Inputs:  # fmt: skip
     """The night (NoDarkTime is an input error) and the coverage warning, once every
     input is known to be good."""
     from scheduler.astro.coverage import coverage_warning
@@ -82,7 +113,8 @@ def finish_inputs(array: ArrayModel, config: str, targets: Targets, date: Any) -
 
     night = find_night(array, date)
     warning = coverage_warning(date)
-    return Inputs(array, array.beams(config), targets, night, (warning,) if warning else ())
+    return Inputs(array, array.beams(config), targets, night, (warning,) if warning else (),
+                  conditions or Conditions())  # fmt: skip
 
 
 def load_inputs(array_path: str | Path, config: str, targets: Targets | str | Path,

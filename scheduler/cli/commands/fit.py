@@ -19,7 +19,8 @@ from scheduler.output.files import check_outputs
 def _inputs(args: argparse.Namespace, g: Gather) -> tuple[Any, Any, Any, Any, Any]:
     """Array, catalog, semester, requests and a Dask client, problems gathered."""
     array = g.take(load_array, args.array)
-    targets = g.take(load_targets, args.targets)
+    targets = g.take(load_targets, args.targets,
+                     [m.name for m in array.modes] if array is not None else None)
     semester = g.take(load_semester, args.semester, array)
     requests = None
     if array is not None and targets is not None:

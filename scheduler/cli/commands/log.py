@@ -17,7 +17,13 @@ from typing import Any
 from rich.console import Console
 
 from scheduler.cli.commands.common import Result
-from scheduler.inputs.night_log import LogTerms, append_record, check_names, cut_last_line
+from scheduler.inputs.night_log import (
+    CONDITION_RANGES,
+    LogTerms,
+    append_record,
+    check_names,
+    cut_last_line,
+)
 from scheduler.inputs.plan_file import read_plan
 from scheduler.model.errors import Gather
 from scheduler.model.log import Event, LogRecord
@@ -40,6 +46,26 @@ def _carriages(items: list[str], g: Gather) -> dict[str, float]:
     return opd
 
 
+def _conditions(args: argparse.Namespace, g: Gather) -> dict[str, float]:
+    """The conditions given, checked against the log's ranges."""
+    out = {}
+    for option, key in (("--seeing", "seeing_arcsec"), ("--coherence-ms", "coherence_ms"),
+                        ("--wind-speed", "wind_speed_m_s"), ("--wind-from", "wind_from_deg")):
+        v = getattr(args, key)
+        if v is None:
+            continue
+        lo, hi = CONDITION_RANGES[key]
+        if not (math.isfinite(v) and lo <= v <= hi):
+            g.add(option, "", f"{v} is not in [{lo:g}, {hi:g}]")
+        out[key] = v
+    if not out:
+        g.add("opdplan log conditions", "",
+              "give --seeing, --coherence-ms or --wind-speed with --wind-from")
+    if ("wind_speed_m_s" in out) != ("wind_from_deg" in out):
+        g.add("--wind-speed", "", "--wind-speed and --wind-from go together")
+    return out
+
+
 def _record(args: argparse.Namespace, g: Gather) -> dict[str, Any]:
     at = args.at if getattr(args, "at", None) else iso_utc(time.time())
     g.take(utc_option, at, "--at")
@@ -51,6 +77,8 @@ def _record(args: argparse.Namespace, g: Gather) -> dict[str, Any]:
         if a is not None and b is not None and b <= a:
             g.add("--to", "", "the closure ends before it starts")
         return {"event": event.value, "from_utc": args.from_, "to_utc": args.to}
+    if event is Event.CONDITIONS:
+        return {"event": event.value, "at_utc": at, **_conditions(args, g)}
     if event in (Event.OUT, Event.BACK):
         key = "station" if args.station else "delay_line"
         return {"event": event.value, key: args.station or args.delay_line, "at_utc": at}

@@ -12,6 +12,7 @@ from scheduler.cli.commands.common import (
     Inputs,
     Result,
     check_matplotlib,
+    conditions_of,
     demo_file,
     finish_inputs,
     gather_inputs,
@@ -45,7 +46,7 @@ def verified(problem: NightProblem, inputs_array: Any, plan: Plan, settings: Pla
     is a bug (:class:`PlanRejected`)."""
     from scheduler.verify import verify_plan
 
-    problems = verify_plan(doc, inputs_array, problem.targets, settings)
+    problems = verify_plan(doc, inputs_array, problem.targets, settings, problem.conditions)
     if problems:
         raise PlanRejected("the verifier rejected the plan: " + "; ".join(map(str, problems)))
     plan = replace(plan, summary=replace(plan.summary, verified=True))
@@ -104,12 +105,13 @@ def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
                           "--plot": args.plot}, [args.array, args.targets], g)  # fmt: skip
     if args.plot:
         check_matplotlib("--plot", g)
+    conditions = conditions_of(args, g)
     g.raise_if_any()
     settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
                             deterministic=args.deterministic,
                             value_per_hour=args.value_per_hour,
                             strict_priority=args.strict_priority)  # fmt: skip
-    inputs = finish_inputs(array, args.config, targets, date)
+    inputs = finish_inputs(array, args.config, targets, date, conditions)
     return plan_and_show(inputs, settings, args.solver, outs, args.json, started_s, console,
                          args.quiet)  # fmt: skip
 

@@ -55,7 +55,8 @@ def windows_view(problem: NightProblem, windows: list[TargetWindows]) -> Windows
 def _category(code: int) -> str:
     """The view's glyph family of a reason code."""
     return {"open": "open", "altitude": "altitude", "horizon mask": "horizon",
-            "delay range": "delay", "Moon": "moon", "time": "time"}[family(code)]  # fmt: skip
+            "delay range": "delay", "Moon": "moon", "time": "time", "wind": "wind",
+            "over-resolved": "resolved", "too faint": "faint"}[family(code)]  # fmt: skip
 
 
 def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
