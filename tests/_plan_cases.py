@@ -14,6 +14,7 @@ from scheduler.astro.night import find_night
 from scheduler.astro.problem import night_problem
 from scheduler.inputs.array_file import parse_array
 from scheduler.inputs.catalog import parse_targets
+from scheduler.model.conditions import Conditions
 from scheduler.model.plan import PlanSettings
 from scheduler.output.plan_document import plan_document
 from scheduler.queue.prepare import QueueInputs, prepare_queue
@@ -28,10 +29,11 @@ OVERHEADS = {"acquisition_s": 480.0, "slew_rate_deg_s": 1.5, "settle_s": 5.0}
 CONFIG = "test"
 COLUMNS = ("name", "ra", "dec", "kind", "program", "priority", "duration_min", "visits",
            "min_visits", "min_separation_min", "needs_calibrator", "mag", "diameter_mas",
-           "window_start_utc", "window_end_utc")  # fmt: skip
+           "window_start_utc", "window_end_utc", "mode", "mag_H", "mag_K", "mag_V",
+           "diameter_err_mas", "limb_darkening")  # fmt: skip
 
 
-def array_dict(stations, rates_m_s=None, opd_max_m=120.0, limits=None) -> dict:
+def array_dict(stations, rates_m_s=None, opd_max_m=120.0, limits=None, modes=None) -> dict:
     """An array document of invented stations ``(east, north, up, internal_path)`` (m),
     one delay line each (0 to ``opd_max_m`` of optical path), one configuration."""
     rates = rates_m_s or [1.0] * len(stations)
@@ -47,6 +49,7 @@ def array_dict(stations, rates_m_s=None, opd_max_m=120.0, limits=None) -> dict:
                          "max_rate_m_s": float(r)} for k, r in enumerate(rates)],
         "configurations": [{"name": CONFIG,
                             "feeds": {f"line-{k}": n for k, n in enumerate(names)}}],
+        **({"modes": list(modes)} if modes else {}),
     }  # fmt: skip
 
 
@@ -62,11 +65,12 @@ class Case:
     ``plan_night`` would build from them."""
 
     def __init__(self, array_doc: dict, rows: list[dict], config: str = CONFIG,
-                 date: dt.date = NIGHT_DATE):  # fmt: skip
+                 date: dt.date = NIGHT_DATE, conditions: Conditions | None = None):  # fmt: skip
         self.array = parse_array(array_doc, "<test array>")
         self.targets = parse_targets(targets_frame(rows), "<test targets>")
         night = find_night(self.array, date)
-        self.problem = night_problem(self.array, self.array.beams(config), self.targets, night)
+        self.problem = night_problem(self.array, self.array.beams(config), self.targets, night,
+                                     conditions=conditions)
 
     def queue(self, settings: PlanSettings) -> QueueInputs:
         """The queue inputs exactly as ``plan_night`` builds them."""
@@ -75,7 +79,8 @@ class Case:
     def problems(self, plan, settings: PlanSettings) -> list[str]:
         """What the independent verifier finds wrong with ``plan`` (empty: valid)."""
         doc = plan_document(self.problem, self.array, plan, settings)
-        return [str(v) for v in verify_plan(doc, self.array, self.targets, settings)]
+        return [str(v) for v in verify_plan(doc, self.array, self.targets, settings,
+                                            self.problem.conditions)]
 
 
 def small_instance(seed: int):

@@ -74,7 +74,12 @@ def plan_file(tmp_path_factory):
      (["carriages", "--at", "2027-04-19T01:00:00Z", "--opd", "rail-1=130"], "outside its range"),
      (["carriages", "--at", "2027-04-19T01:00:00Z", "--opd", "rail-9=30"],
       "delay line 'rail-9' is not one of"),
-     (["done", "--visit", "Tide-05#1", "--at", "yesterday"], "--at: 'yesterday'")],
+     (["done", "--visit", "Tide-05#1", "--at", "yesterday"], "--at: 'yesterday'"),
+     (["conditions", "--seeing", "-1"], "--seeing: -1.0 is not in"),
+     (["conditions", "--coherence-ms", "0"], "--coherence-ms: 0.0 is not in"),
+     (["conditions", "--seeing", "1.0", "--wind-speed", "15"], "go together"),
+     (["conditions", "--wind-speed", "15", "--wind-from", "400"], "--wind-from: 400.0"),
+     (["conditions"], "give --seeing, --coherence-ms or --wind-speed")],
 )  # fmt: skip
 def test_log_refuses_what_the_plan_does_not_know(plan_file, tmp_path, capsys, args, expected):
     """Each refused record: exit 2, one line naming the value, the log untouched."""
@@ -96,3 +101,32 @@ def test_log_accepts_a_good_record(plan_file, tmp_path):
                  "--at", "2027-04-19T01:00:00Z"]) == 0  # fmt: skip
     records, warnings = read_log(log)
     assert [r.visit for r in records] == [vid] and warnings == []
+
+
+def test_conditions_records_are_read_back_and_the_latest_applies(plan_file, tmp_path):
+    """Conditions are kept in time order; each record changes what it states and leaves
+    the rest (README "Conditions during the night"; common practice, no source)."""
+    import math
+
+    from scheduler.model.log import Event
+    from scheduler.replan.situation import conditions_at
+
+    plan, doc = plan_file
+    log = tmp_path / "night.jsonl"
+    for argv in (["--seeing", "1.1", "--coherence-ms", "3.0", "--at", "2027-04-19T01:00:00Z"],
+                 ["--wind-speed", "14", "--wind-from", "300", "--at", "2027-04-19T02:00:00Z"],
+                 ["--seeing", "1.6", "--at", "2027-04-19T03:00:00Z"]):
+        assert main(["log", "conditions", "--log", str(log), "--plan", str(plan), *argv]) == 0
+    records, _ = read_log(log)
+    assert [r.event for r in records] == [Event.CONDITIONS] * 3
+    arcsec = math.pi / 180 / 3600
+    at_230 = conditions_at(records, doc, 1808101800.0)  # 2027-04-19T02:30:00Z (calendar arithmetic)
+    assert at_230.seeing_rad == pytest.approx(1.1 * arcsec)
+    assert at_230.coherence_s == pytest.approx(3.0e-3)
+    assert at_230.wind_speed_m_s == 14.0
+    assert at_230.wind_from_rad == pytest.approx(math.radians(300.0))
+    later = conditions_at(records, doc, 1808107200.0)  # 04:00Z
+    assert later.seeing_rad == pytest.approx(1.6 * arcsec)
+    assert later.coherence_s == pytest.approx(3.0e-3)
+    before = conditions_at(records, doc, 1808094400.0)  # 00:26:40Z: none yet
+    assert before.seeing_rad is None and before.wind_from_rad is None

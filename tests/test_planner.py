@@ -209,7 +209,7 @@ ARRAY = array_dict([(0.0, 0.0, 0.0, 50.0), (30.0, 20.0, 0.2, 58.0), (-20.0, 35.0
 def _reasons(rows) -> dict[str, str]:
     case = Case(ARRAY, rows)
     plan = plan_night(case.problem, PlanSettings(time_limit_s=RANDOM_LIMIT_S), "greedy")
-    return dict(plan.unscheduled)
+    return {u.target: u.text for u in plan.unscheduled}
 
 
 def test_target_below_the_horizon_all_night_is_never_observable():

@@ -72,6 +72,8 @@ def test_unscheduled_targets_and_reasons_appear(rendered):
     for item in doc["unscheduled"]:
         assert item["target"] in text, item["target"]
         assert _in_order(item["reason"].split(), tokens), item["reason"]
+        bare = [tok.strip("(),") for tok in tokens]  # figures follow the name in brackets
+        assert _in_order(item["detail"].split(), bare), item["detail"]
 
 
 def test_summary_numbers_appear(rendered):

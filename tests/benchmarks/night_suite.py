@@ -38,7 +38,7 @@ from scheduler.model.times import iso_utc, parse_night
 CONFIG = "tonight"
 COLUMNS = ("name", "ra", "dec", "kind", "program", "priority", "duration_min", "visits",
            "min_separation_min", "needs_calibrator", "mag", "diameter_mas",
-           "window_start_utc", "window_end_utc")  # fmt: skip
+           "diameter_err_mas", "window_start_utc", "window_end_utc")  # fmt: skip
 STATION_WORDS = ("quartz", "basalt", "garnet", "flint", "opal", "jasper", "slate", "mica",
                  "agate", "beryl", "cedar", "alder", "rowan", "hazel", "larch", "aspen",
                  "juniper", "spruce")  # fmt: skip
@@ -310,8 +310,14 @@ def _calibrators(sci: list[dict], ratio: float, rng: np.random.Generator) -> lis
             name=f"Cal-{host['name']}{'abcdefgh'[letters[h] - 1]}", ra=f"{ra:.4f}",
             dec=f"{dec:.4f}", kind="calibrator", duration_min=int(rng.choice(CAL_MIN)),
             mag=f"{float(host['mag']) + dmag:.1f}",
-            diameter_mas=f"{rng.uniform(0.1, 0.6):.2f}"))  # fmt: skip
+            **_calibrator_size(rng)))  # fmt: skip
     return rows
+
+
+def _calibrator_size(rng: np.random.Generator) -> dict[str, str]:
+    """A small, well-measured calibrator: 0.05-0.3 mas, known to 3-8 %."""
+    d = float(rng.uniform(0.05, 0.3))
+    return {"diameter_mas": f"{d:.3f}", "diameter_err_mas": f"{d * rng.uniform(0.03, 0.08):.4f}"}
 
 
 def _near_counts(rows: list[dict[str, str]]) -> np.ndarray:
