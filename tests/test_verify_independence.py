@@ -2,7 +2,9 @@
 the planner's geometry, queue, ephemeris, replan, semester, output, views or command
 line, nor astropy except through ``scheduler.astro.reference`` (README.md, *The night
 queue*, "Verifier": it "shares no geometry or transition code with the planner";
-common practice, no source)."""
+common practice, no source).  Of the model it takes the data, not the planner's
+arithmetic on it: not the brightness verdicts (``scheduler.model.brightness``) nor the
+limits' rule of ``scheduler.model.conditions`` (its ``Conditions`` dataclass only)."""
 
 from __future__ import annotations
 
@@ -18,9 +20,12 @@ VERIFY = Path(__file__).resolve().parent.parent / "scheduler" / "verify"
 ALLOWED_SCHEDULER = ("scheduler.model", "scheduler.inputs.plan_file", "scheduler.astro.reference",
                      "scheduler.verify")  # fmt: skip
 ALLOWED_OTHERS = ("numpy", "scipy")
-FORBIDDEN_LOADED = ("scheduler.geometry", "scheduler.queue", "scheduler.astro.ephemeris",
-                    "scheduler.astro.night", "scheduler.astro.problem", "scheduler.replan",
-                    "scheduler.semester", "scheduler.output", "scheduler.views", "scheduler.cli")
+PLANNER_ARITHMETIC = ("scheduler.model.brightness", "scheduler.model.conditions.tracking_limit",
+                      "scheduler.model.conditions.guiding_limit")  # fmt: skip
+FORBIDDEN_LOADED = ("scheduler.model.brightness", "scheduler.geometry", "scheduler.queue",
+                    "scheduler.astro.ephemeris", "scheduler.astro.night", "scheduler.astro.problem",
+                    "scheduler.replan", "scheduler.semester", "scheduler.output", "scheduler.views",
+                    "scheduler.cli")  # fmt: skip
 
 
 def _within(name: str, roots: tuple[str, ...]) -> bool:
@@ -29,6 +34,8 @@ def _within(name: str, roots: tuple[str, ...]) -> bool:
 
 def _allowed(name: str) -> bool:
     top = name.split(".")[0]
+    if _within(name, PLANNER_ARITHMETIC):
+        return False
     if top == "scheduler":
         return _within(name, ALLOWED_SCHEDULER)
     if top == "astropy":
@@ -90,6 +97,10 @@ def test_no_forbidden_import(path: Path) -> None:
     "from scheduler.inputs import catalog",
     "import importlib\nimportlib.import_module('scheduler.geometry.delay')",
     "from ..geometry import delay",
+    "from scheduler.model.brightness import faint_codes",
+    "from scheduler.model import brightness",
+    "from scheduler.model.conditions import tracking_limit",
+    "from scheduler.model.conditions import Conditions, guiding_limit",
 ])  # fmt: skip
 def test_the_import_check_catches_forbidden_imports(source: str) -> None:
     """The check itself must be able to fail."""
@@ -100,6 +111,7 @@ def test_the_import_check_catches_forbidden_imports(source: str) -> None:
     "from scheduler.astro.reference import star_altaz",
     "from scheduler.astro import reference",
     "from scheduler.model.array import ArrayModel",
+    "from scheduler.model.conditions import Conditions",
     "from scheduler.inputs.plan_file import schema_problems",
     "from scheduler.verify.report import Violation",
     "from .report import Violation",
