@@ -40,10 +40,11 @@ def make_beams():
     return build_beams
 
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope="session")
 def demo_greedy():
     """The fictional demo night (configuration medium) planned greedily:
-    (inputs, context, plan, plan document)."""
+    (inputs, context, plan, plan document), planned once per session: never modify
+    them (deep-copy the document first)."""
     from pathlib import Path
 
     from scheduler.cli.commands.common import load_inputs

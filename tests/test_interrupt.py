@@ -33,3 +33,29 @@ def test_ctrl_c_leaves_nothing(tmp_path, after_s):
     assert child.returncode == EXIT_SIGINT, err.decode()
     assert "Traceback" not in err.decode()
     assert list(tmp_path.iterdir()) == []
+
+
+def test_ctrl_c_during_an_extension_import_is_an_interruption(monkeypatch, capsys):
+    """A compiled module whose import is interrupted raises ImportError chained to the
+    KeyboardInterrupt: still exit 130, one line, no traceback (common practice, no
+    source: Ctrl-C means stop, whatever was running)."""
+    import scheduler.cli.main as cli
+
+    def broken(args, started, console):
+        try:
+            raise KeyboardInterrupt
+        except KeyboardInterrupt as exc:
+            raise ImportError("initialization failed") from exc
+
+    monkeypatch.setattr(cli, "_command", lambda name: broken)
+    assert cli.main(["windows", "--array", "a", "--config", "c", "--targets", "t",
+                     "--night", "2027-04-18"]) == EXIT_SIGINT  # fmt: skip
+    assert capsys.readouterr().err.strip() == "opdplan: interrupted; nothing was written"
+    monkeypatch.setattr(cli, "_command", lambda name: _raise_value_error)
+    with pytest.raises(ValueError):
+        cli.main(["windows", "--array", "a", "--config", "c", "--targets", "t",
+                  "--night", "2027-04-18"])  # fmt: skip
+
+
+def _raise_value_error(args, started, console):
+    raise ValueError("a bug elsewhere is not hidden")

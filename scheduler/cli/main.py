@@ -92,9 +92,27 @@ def main(argv: list[str] | None = None, started: float | None = None) -> int:
     except KeyboardInterrupt:
         print("opdplan: interrupted; nothing was written", file=sys.stderr)
         return 130
-    except RuntimeError as exc:  # a plan the verifier rejects is a bug: say so, write nothing
-        print(f"opdplan: internal error (please report): {exc}", file=sys.stderr)
-        return 3
+    except Exception as exc:
+        if _interrupted(exc):  # e.g. Ctrl-C while a compiled module initialises
+            print("opdplan: interrupted; nothing was written", file=sys.stderr)
+            return 130
+        if isinstance(exc, RuntimeError):  # a plan the verifier rejects is a bug
+            print(f"opdplan: internal error (please report): {exc}", file=sys.stderr)
+            return 3
+        raise
+
+
+def _interrupted(exc: BaseException) -> bool:
+    """Whether a KeyboardInterrupt caused ``exc`` (some extension modules turn a
+    Ctrl-C during their import into an ImportError chained to it)."""
+    seen: set[int] = set()
+    cause: BaseException | None = exc
+    while cause is not None and id(cause) not in seen:
+        if isinstance(cause, KeyboardInterrupt):
+            return True
+        seen.add(id(cause))
+        cause = cause.__cause__ or cause.__context__
+    return False
 
 
 def entry() -> None:  # pragma: no cover - the console script
