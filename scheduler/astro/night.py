@@ -14,7 +14,7 @@ import datetime as dt
 
 import numpy as np
 
-from scheduler.astro.ephemeris import body_track, earth_frame, local_sidereal_time
+from scheduler.astro.ephemeris import earth_frame, local_sidereal_time, sun_and_moon
 from scheduler.geometry.dark import DAY_S, dark_interval
 from scheduler.model.array import ArrayModel, Site
 from scheduler.model.errors import InputError, Problem
@@ -42,11 +42,12 @@ def _wrap_lon(site: Site) -> Site:
 
 def body_tracks(array: ArrayModel, first: dt.date, last: dt.date) -> tuple[BodyTrack, BodyTrack]:
     """Sun and Moon tracks covering every night from ``first`` to ``last``, computed in
-    one astropy call each (a semester needs thousands of nodes, not one call a night)."""
+    one vectorised ERFA pass for the whole span (a semester needs thousands of nodes, not
+    one call a night); see :func:`scheduler.astro.ephemeris.body_directions`."""
     site = _wrap_lon(array.site)
     a = local_noon_s(first, site) - 3600.0
     b = local_noon_s(last, site) + DAY_S + 3600.0
-    return body_track("sun", site, a, b, SUN_NODE_S), body_track("moon", site, a, b, MOON_NODE_S)
+    return sun_and_moon(site, a, b, SUN_NODE_S, MOON_NODE_S)
 
 
 def find_night(array: ArrayModel, date: dt.date,
