@@ -83,23 +83,40 @@ def greedy_sequence(q: QueueInputs, origin: Start | None = None) -> Sequence:
     science = sorted((c for c in q.candidates if c.is_science),
                      key=lambda c: (-targets.priority[c.target], c.number))  # fmt: skip
     st = _initial(q, science, origin)
+    lead = q.settings.calibrator_gap_s + max(
+        [c.duration_s for c in q.candidates if not c.is_science], default=0.0)
     while st.cursor < end_s:
-        best = None
+        best, soonest = None, np.inf
         for c in science:
             if c.number != st.next_number.get(c.target):
                 continue
             sep = targets.min_separation_s[c.target]
             ready = max(st.cursor, st.last_end.get(c.target, -np.inf) + sep)
+            first = c.earliest_start(ready)
+            if first is None:
+                continue
+            soonest = min(soonest, first)
             block = _block(q, c, ready, st)
             if block is None or block[-1][1] > end_s or block[0][1] - st.cursor > MAX_WAIT_S:
                 continue
             best = block
             break  # science is sorted by priority: the first feasible block wins
         if best is None:
-            st.cursor += IDLE_STEP_S
+            st.cursor += _idle_steps(st.cursor, soonest - lead - MAX_WAIT_S) * IDLE_STEP_S
             continue
         _take(best, st)
     return st.seq
+
+
+def _idle_steps(cursor: float, nothing_before: float) -> float:
+    """Idle steps to take when no block fits: one, or as many whole steps as stay before
+    ``nothing_before`` (no block can begin within the wait allowed of an earlier cursor:
+    a block opens at most a calibrator gap and a calibrator visit before its science
+    visit, which starts no earlier than now).  Whole steps keep the cursor where single
+    steps would have put it, so the sequence is the same, only found sooner."""
+    if not np.isfinite(nothing_before):
+        return np.inf
+    return max(1.0, float(np.floor((nothing_before - cursor) / IDLE_STEP_S)))
 
 
 def _take(block: Block, st: _State) -> None:

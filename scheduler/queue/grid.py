@@ -38,6 +38,15 @@ class GeometryGrid:
         return cls(t, ev.alt_rad, ev.az_rad, ev.pds_m, ev.span.low_m + m, ev.span.high_m - m,
                    ev.ok)  # fmt: skip
 
+    def compact(self) -> GeometryGrid:
+        """The same grid in single precision (half the memory; directions to about
+        1e-7 rad and paths to about 1e-5 m, far inside the grid's own rounding): for
+        nights kept or sent in numbers, as a semester's are."""
+        f = np.float32
+        return GeometryGrid(self.t_s, self.alt_rad.astype(f), self.az_rad.astype(f),
+                            self.pds_m.astype(f), self.k_low_m.astype(f),
+                            self.k_high_m.astype(f), self.ok)  # fmt: skip
+
     def __post_init__(self) -> None:
         # plain floats for column_of (frozen dataclass: set once here)
         object.__setattr__(self, "_t0", float(self.t_s[0]))
@@ -58,12 +67,15 @@ class GeometryGrid:
 
 class GridTransitions:
     """Transition times read from the grid, with a small pad for the nearest-sample
-    rounding (``pad_s``)."""
+    rounding (``pad_s``).  Every answer is remembered per pair of grid samples: the
+    sequencers ask the same questions many times (and a semester's realisations share
+    one night's answers)."""
 
     def __init__(self, grid: GeometryGrid, beams: Beams, over: Overheads, pad_s: float = 0.0,
                  setup: np.ndarray | None = None):  # fmt: skip
         self.g, self.beams, self.over, self.pad = grid, beams, over, pad_s
         self.setup = setup  # (N, N) set-up seconds from target a's mode to b's
+        self._memo: dict[tuple[int, int, int, int], tuple[float, float]] = {}
 
     def setup_s(self, ia: int, ib: int) -> float:
         return 0.0 if self.setup is None else float(self.setup[ia, ib])
@@ -73,6 +85,16 @@ class GridTransitions:
         ``ta`` to ``ib`` starting at ``tb``."""
         g = self.g
         ca, cb = g.column_of(ta), g.column_of(tb)
+        key = (ia, ca, ib, cb)
+        got = self._memo.get(key)
+        if got is None:
+            got = self._compute(ia, ca, ib, cb)
+            self._memo[key] = got
+        return got
+
+    def _compute(self, ia: int, ca: int, ib: int, cb: int) -> tuple[float, float]:
+        """The transition between grid samples (not remembered)."""
+        g = self.g
         tr = transition(
             self.beams, self.over,
             g.alt_rad[ia, ca], g.az_rad[ia, ca], g.pds_m[:, ia, ca], g.k_low_m[ia, ca],

@@ -1,9 +1,10 @@
 """Transition times for the search: exact enough to decide, cheap enough to ask often.
 
 ``Oracle.total`` reads the one-minute geometry grid (exact minimax carriage move on the
-grid's samples, plus a pad for the nearest-sample rounding) and remembers every answer:
-a search asks the same questions many times.  ``Oracle.first`` is the transition into
-the first visit (from a restart state, or the first acquisition of the night).
+grid's samples, plus a pad for the nearest-sample rounding; the grid transitions
+remember every answer: a search asks the same questions many times).
+``Oracle.first`` is the transition into the first visit (from a restart state, or the
+first acquisition of the night).
 ``Oracle.estimate`` is a time-independent guess between two targets from their angular
 distance, used only to rank insertions before they are timed properly.
 """
@@ -26,21 +27,13 @@ class Oracle:
     def __init__(self, q: QueueInputs, origin: Start | None = None):
         self.q, self.origin = q, origin
         self.grid, self.tr = q.transitions.g, q.transitions
-        self._memo: dict[tuple[int, int, int, int], float] = {}
         self._first: dict[tuple[int, int], float] = {}
-        self.calls = 0
         self.estimate = self._estimates()
 
     def total(self, ia: int, ta: float, ib: int, tb: float) -> float:
         """Seconds needed from target ``ia`` ending at ``ta`` to ``ib`` starting at
         ``tb`` (slew or carriage move, then acquisition; grid pad included)."""
-        key = (ia, self.grid.column_of(ta), ib, self.grid.column_of(tb))
-        got = self._memo.get(key)
-        if got is None:
-            self.calls += 1
-            got = self.tr.seconds(ia, ta, ib, tb)[0]
-            self._memo[key] = got
-        return got
+        return self.tr.seconds(ia, ta, ib, tb)[0]
 
     def first(self, ib: int, tb: float) -> float:
         """Seconds needed before the first visit, on target ``ib`` at ``tb``, counted
