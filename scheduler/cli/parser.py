@@ -159,11 +159,14 @@ def _other_commands(sub: argparse._SubParsersAction) -> None:
     ft.add_argument("--array", required=True, help="array file (TOML)")
     ft.add_argument("--targets", required=True, help="target catalog")
     ft.add_argument("--proposals", required=True, help="proposals (CSV)")
-    ft.add_argument("--simulate", type=int, default=0, metavar="N",
-                    help="weather realisations of the semester (0: none)")  # fmt: skip
+    ft.add_argument("--simulate", type=int, default=100, metavar="N",
+                    help="weather realisations of the semester (default 100: odds to "
+                    "within 5 points of standard error)")  # fmt: skip
     ft.add_argument("--seed", type=int, default=0, help="random seed of the realisations")
-    ft.add_argument("--cluster", help="address of a Dask scheduler (cluster extra)")
-    ft.add_argument("--plot", help="write a PNG of the pressure by right ascension")
+    ft.add_argument("--workers", type=int, metavar="N",
+                    help="local processes (default: one per core; 1: this process only)")
+    ft.add_argument("--cluster", help="address of a running Dask scheduler (cluster extra)")
+    ft.add_argument("--plot", help="write a PNG of the pressure per configuration and LST")
     ft.add_argument("--json", action="store_true", help="print JSON instead of the view")
     _sub(sub, "demo", "plan the fictional demo night end to end", "")
 

@@ -1,10 +1,21 @@
 """Load and validate a semester file (TOML) and a proposals table (CSV).
 
 Semester file: ``[semester] start, end`` (local evening dates, inclusive),
-``[[calendar]] configuration, from, to`` (inclusive, non-overlapping), ``[weather]
-usable_fraction = {month number = fraction of night time usable}``, one entry for every
-month the semester touches.  Unknown keys anywhere are problems.  Proposals (CSV):
-``program, target, configuration, hours, priority``, one row per requested target.
+``[[calendar]] configuration, from, to`` (inclusive, non-overlapping), and one
+``[[weather]]`` table for every month the semester touches::
+
+    [[weather]]
+    month = 4
+    clear_nights = 0.8          # fraction of nights not lost whole (required)
+    lost_spell_nights = 2.5     # mean run of lost nights (default: independent nights)
+    partial_nights = 0.2        # fraction of clear nights losing part of the night
+    seeing_arcsec = 0.8         # median seeing (default: each mode's reference)
+    seeing_spread = 0.3         # standard deviation of ln(seeing)
+    coherence_ms = 4.0          # median coherence time (default: each mode's reference)
+    coherence_spread = 0.4      # standard deviation of ln(coherence time)
+
+Unknown keys anywhere are problems.  Proposals (CSV): ``program, target, configuration,
+hours, priority``, one row per requested target.
 """
 
 from __future__ import annotations
@@ -18,13 +29,18 @@ from scheduler.inputs.catalog import read_table
 from scheduler.inputs.toml_file import read_toml
 from scheduler.model.array import ArrayModel
 from scheduler.model.errors import ProblemList
-from scheduler.model.semester import CalendarEntry, Request, Semester
+from scheduler.model.semester import CalendarEntry, MonthWeather, Request, Semester
 from scheduler.model.targets import Targets
 
 _TOP = {"semester", "calendar", "weather"}
 _SEMESTER = {"start", "end"}
 _CALENDAR = {"configuration", "from", "to"}
-_WEATHER = {"usable_fraction"}
+#: weather key -> (allowed range, factor to SI)
+_WEATHER = {"clear_nights": ((0.0, 1.0), 1.0), "lost_spell_nights": ((1.0, 366.0), 1.0),
+            "partial_nights": ((0.0, 1.0), 1.0), "seeing_arcsec": ((0.05, 10.0), math.pi / 648e3),
+            "seeing_spread": ((0.0, 2.0), 1.0), "coherence_ms": ((0.1, 1000.0), 1e-3),
+            "coherence_spread": ((0.0, 2.0), 1.0)}  # fmt: skip
+_WEATHER_FIELD = {"seeing_arcsec": "seeing_rad", "coherence_ms": "coherence_s"}
 
 
 def _date(value: Any, where: str, p: ProblemList) -> dt.date | None:
@@ -63,16 +79,16 @@ def load_semester(path: str | Path, array: ArrayModel | None) -> Semester:
     if start and end and end < start:
         p.add("semester.end", f"{end} is before the start {start}")
     entries = _calendar(data.get("calendar", []), array, p)
-    fractions = _weather(data.get("weather", {}), p)
+    weather = _weather(data.get("weather", []), p)
     if start and end and end >= start:
         months = sorted({(start + dt.timedelta(days=k)).month
                          for k in range((end - start).days + 1)})  # fmt: skip
         for month in months:
-            if month not in fractions:
-                p.add("weather.usable_fraction", f"no statistics for month {month}")
+            if month not in weather:
+                p.add("weather", f"no [[weather]] table for month {month}")
     p.raise_if_any()
     assert start is not None and end is not None
-    return Semester(start, end, tuple(entries), tuple(sorted(fractions.items())), src)
+    return Semester(start, end, tuple(entries), tuple(weather[m] for m in sorted(weather)), src)
 
 
 def _calendar(raw: Any, array: ArrayModel | None, p: ProblemList) -> list[CalendarEntry]:
@@ -101,22 +117,51 @@ def _calendar(raw: Any, array: ArrayModel | None, p: ProblemList) -> list[Calend
     return [e for _, e in entries]
 
 
-def _weather(raw: Any, p: ProblemList) -> dict[int, float]:
-    weather = _table(raw, "weather", _WEATHER, _WEATHER, p)
-    table = weather.get("usable_fraction", {})
-    if not isinstance(table, dict):
-        p.add("weather.usable_fraction", f"must map month numbers to fractions, got {table!r}")
+def _weather(raw: Any, p: ProblemList) -> dict[int, MonthWeather]:
+    """The ``[[weather]]`` tables by month number."""
+    if not isinstance(raw, list):
+        p.add("weather", "must be an array of tables ([[weather]], one per month)")
         return {}
-    fractions: dict[int, float] = {}
-    for key, value in table.items():
-        ok = isinstance(value, int | float) and not isinstance(value, bool)
-        ok = ok and math.isfinite(value) and 0 <= value <= 1
-        if not str(key).isdigit() or not 1 <= int(key) <= 12 or not ok:
-            p.add(f"weather.usable_fraction.{key}",
-                  f"needs a month 1-12 and a fraction 0-1, got {value!r}")  # fmt: skip
+    out: dict[int, MonthWeather] = {}
+    for i, t in enumerate(raw):
+        where = f"weather[{i}]"
+        w = _table(t, where, {"month", *_WEATHER}, {"month", "clear_nights"}, p)
+        month = w.get("month")
+        if "month" in w and (not isinstance(month, int) or isinstance(month, bool)
+                             or not 1 <= month <= 12):  # fmt: skip
+            p.add(f"{where}.month", f"must be a month number 1-12, got {month!r}")
             continue
-        fractions[int(key)] = float(value)
-    return fractions
+        values: dict[str, float] = {}
+        for key, ((lo, hi), factor) in _WEATHER.items():
+            v = w.get(key)
+            if v is None:
+                continue
+            if isinstance(v, bool) or not isinstance(v, int | float) or not lo <= v <= hi:
+                p.add(f"{where}.{key}", f"must be a number in [{lo:g}, {hi:g}], got {v!r}")
+                continue
+            values[_WEATHER_FIELD.get(key, key)] = float(v) * factor
+        month_weather = _month(where, month, values, p)
+        if month_weather is not None and isinstance(month, int):
+            if month in out:
+                p.add(f"{where}.month", f"month {month} has two [[weather]] tables")
+            out[month] = month_weather
+    return out
+
+
+def _month(where: str, month: Any, values: dict[str, float],
+           p: ProblemList) -> MonthWeather | None:  # fmt: skip
+    """A month's weather once its numbers are checked together: a lost spell no shorter
+    than the chain allows (P(clear -> lost) <= 1 needs spell >= (1 - clear) / clear)."""
+    if "clear_nights" not in values or not isinstance(month, int):
+        return None
+    clear = values["clear_nights"]
+    spell = values.get("lost_spell_nights", 1.0 / clear if clear > 0 else 1.0)
+    if clear > 0 and (1.0 - clear) / clear > spell + 1e-12:
+        p.add(f"{where}.lost_spell_nights", f"{spell:g} is too short for clear_nights "
+              f"{clear:g}: runs of lost nights average at least {(1 - clear) / clear:.3g}")
+        return None
+    values["lost_spell_nights"] = spell
+    return MonthWeather(month, **values)
 
 
 def load_proposals(path: str | Path, targets: Targets, array: ArrayModel) -> list[Request]:

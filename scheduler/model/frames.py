@@ -49,3 +49,10 @@ class BodyTrack:
     name: str
     t_nodes_s: np.ndarray
     xyz: np.ndarray
+
+    def between(self, t_start_s: float, t_end_s: float) -> BodyTrack:
+        """The nodes covering ``[t_start_s, t_end_s]``, with two more on each side for
+        the interpolation (a smaller object to keep or send)."""
+        lo = max(int(np.searchsorted(self.t_nodes_s, t_start_s)) - 2, 0)
+        hi = min(int(np.searchsorted(self.t_nodes_s, t_end_s)) + 2, len(self.t_nodes_s))
+        return BodyTrack(self.name, self.t_nodes_s[lo:hi].copy(), self.xyz[lo:hi].copy())

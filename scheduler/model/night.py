@@ -7,7 +7,7 @@ on the evening of 18 April at the site.  Found by :mod:`scheduler.astro.night`.
 from __future__ import annotations
 
 import datetime as dt
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -34,6 +34,11 @@ class Night:
             self.lst_ref_rad + ERA_RATE_RAD_S * (np.asarray(t_s, float) - self.frame.t_ref_s),
             2 * np.pi,
         )
+
+    def trimmed(self) -> Night:
+        """The same night with Sun and Moon tracks cut to its dark interval."""
+        return replace(self, sun=self.sun.between(self.start_s, self.end_s),
+                       moon=self.moon.between(self.start_s, self.end_s))  # fmt: skip
 
     @property
     def duration_s(self) -> float:

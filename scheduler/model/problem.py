@@ -3,7 +3,7 @@ catalog, prepared once (by :mod:`scheduler.astro.problem`) and then only read.""
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -62,3 +62,15 @@ class NightProblem:
 
     def mode_of(self, i: int) -> Mode:
         return self.modes[int(self.mode_index[i])]
+
+    def subset(self, idx: np.ndarray) -> NightProblem:
+        """The same night for the targets at positions ``idx`` only, in that order."""
+        i = np.asarray(idx, int)
+        return replace(self, targets=self.targets.subset(i), ri_rad=self.ri_rad[i],
+                       di_rad=self.di_rad[i], mode_index=self.mode_index[i],
+                       faint=self.faint[i])  # fmt: skip
+
+    def ignoring_brightness(self) -> NightProblem:
+        """The same night with every target taken as bright enough (the brightness is
+        then judged elsewhere, e.g. under conditions drawn night by night)."""
+        return replace(self, faint=np.zeros(len(self.targets), int))

@@ -143,23 +143,28 @@ def _palette(count: int) -> list:
 
 
 def pressure_png(pressure: list[dict]) -> bytes:
-    """A PNG of requested hours and usable dark hours per hour of right ascension."""
+    """A PNG per configuration of requested telescope hours and usable dark hours per
+    hour of local sidereal time (``pressure`` rows as in ``opdplan fit --json``)."""
     import matplotlib
 
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    ra = [b["ra_hours"] for b in pressure]
-    fig, ax = plt.subplots(figsize=(9, 4))
-    ax.bar(ra, [b["usable_dark_hours"] for b in pressure], width=0.9, color="0.8",
-           label="usable dark hours (weather-weighted)")  # fmt: skip
-    ax.bar(ra, [b["requested_hours"] for b in pressure], width=0.5, color="tab:red",
-           label="requested hours")  # fmt: skip
-    ax.set_xlabel("right ascension, h")
-    ax.set_ylabel("hours")
-    ax.set_xticks(range(0, 24, 2))
-    ax.legend()
-    ax.set_title("Pressure by right ascension (advisory)")
+    configs = sorted({b["configuration"] for b in pressure})
+    fig, axes = plt.subplots(len(configs), 1, figsize=(9, 2.6 * len(configs)), sharex=True,
+                             squeeze=False)  # fmt: skip
+    for ax, cfg in zip(axes[:, 0], configs, strict=True):
+        rows = [b for b in pressure if b["configuration"] == cfg]
+        lst = [b["lst_hour"] for b in rows]
+        ax.bar(lst, [b["usable_dark_hours"] for b in rows], width=0.9, color="0.8",
+               label="usable dark hours")  # fmt: skip
+        ax.bar(lst, [b["requested_hours"] for b in rows], width=0.5, color="tab:red",
+               label="requested, with overheads")  # fmt: skip
+        ax.set_ylabel(f"{cfg}\nhours")
+        ax.legend(loc="upper right", fontsize="small")
+    axes[-1, 0].set_xlabel("local sidereal time, h")
+    axes[-1, 0].set_xticks(range(0, 24, 2))
+    fig.suptitle("Pressure per configuration and sidereal time (advisory)")
     buf = io.BytesIO()
     fig.savefig(buf, format="png", dpi=100, bbox_inches="tight")
     plt.close(fig)

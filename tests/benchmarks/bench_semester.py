@@ -1,115 +1,99 @@
-"""Benchmark: semester availability and the completion Monte Carlo.
+"""Benchmark: the committee's simulation on the fictional six-month demo semester.
 
-1. Availability of 1000 invented targets over 180 nights at 5-minute resolution (goal:
-   at most 20 s wall on 2 cores), with the speed ratio against a per-night astropy
-   AltAz loop over a subset (the same nights' altitude and delay feasibility, computed
-   target by night with astropy's full transform), measured in the same run.
-2. Monte Carlo: 20 realisations of the 30-night demo semester, serially and on a Dask
-   LocalCluster of 2 workers (same seeds, same results).
+Goals (2 cores): preparing the semester's nights in at most 30 s; 100 weather
+realisations in at most 120 s and 1 GB on the local cores; a Dask LocalCluster of two
+worker processes at least 1.7x faster than one worker on the same work, with the same
+numbers.  (Availability of 1000 targets x 180 nights: ``bench_availability.py``.)
 
-Run: ``python tests/benchmarks/bench_semester.py``
+Run: ``python tests/benchmarks/bench_semester.py [--realisations N]``
 """
 
 from __future__ import annotations
 
+import argparse
+import resource
 import time
 from pathlib import Path
 
 import numpy as np
-import pandas as pd
 
 import scheduler.astro  # noqa: F401  (astropy offline before any transform)
-from scheduler.astro.ephemeris import location, to_time
-from scheduler.astro.night import body_tracks, find_night
-from scheduler.geometry.delay import offset_span, projected_path
+from scheduler.astro.night import body_tracks
 from scheduler.inputs.array_file import load_array
-from scheduler.inputs.catalog import load_targets, parse_targets
+from scheduler.inputs.catalog import load_targets
 from scheduler.inputs.semester_file import load_proposals, load_semester
-from scheduler.model.semester import CalendarEntry, Semester
-from scheduler.semester.availability import semester_availability
-from scheduler.semester.simulate import Scenario, simulate
+from scheduler.semester.nights import prepare_night
+from scheduler.semester.pool import Scenario, build_scenario
+from scheduler.semester.realise import Outcome
+from scheduler.semester.simulate import simulate
 
 ROOT = Path(__file__).resolve().parents[2]
-N_TARGETS, N_NIGHTS, STEP_S = 1000, 180, 300.0
-SUBSET_TARGETS, SUBSET_NIGHTS = 100, 6
 
 
-def invented(n: int) -> pd.DataFrame:
-    rng = np.random.default_rng(5)
-    return pd.DataFrame({"name": [f"bench-{k}" for k in range(n)],
-                         "ra": [f"{x:.4f}" for x in rng.uniform(0, 360, n)],
-                         "dec": [f"{x:.4f}" for x in rng.uniform(-85, 25, n)],
-                         "duration_min": ["30"] * n})  # fmt: skip
-
-
-def astropy_loop(array, targets, semester, nights):
-    """Altitude and delay feasibility target by night with astropy's full transform."""
-    import astropy.units as u
-    from astropy.coordinates import AltAz, SkyCoord
-
-    beams = array.beams("medium")
-    tracks = body_tracks(array, nights[0], nights[-1])
-    hours = np.zeros(len(targets))
-    for d in nights:
-        night = find_night(array, d, tracks)
-        t = night.grid(STEP_S)
-        frame = AltAz(obstime=to_time(t), location=location(array.site), pressure=0 * u.hPa)
-        for i in range(len(targets)):
-            c = SkyCoord(ra=targets.ra_rad[i] * u.rad, dec=targets.dec_rad[i] * u.rad)
-            aa = c.transform_to(frame)
-            alt, az = aa.alt.rad, aa.az.rad
-            e, n, up = np.cos(alt) * np.sin(az), np.cos(alt) * np.cos(az), np.sin(alt)
-            ok = (alt > array.limits.min_altitude_rad) & offset_span(
-                beams, projected_path(beams, e, n, up)
-            ).feasible()
-            hours[i] += ok.sum() * STEP_S / 3600.0
-    return hours
-
-
-def availability() -> None:
-    array = load_array(ROOT / "catalogs" / "demo_array.toml")
-    targets = parse_targets(invented(N_TARGETS), "bench")
-    start = load_semester(ROOT / "examples" / "demo_semester.toml", array).start
-    end = start + pd.Timedelta(days=N_NIGHTS - 1).to_pytimedelta()
-    sem = Semester(start, end, (CalendarEntry("medium", start, end),),
-                   tuple((m, 0.7) for m in range(1, 13)), "bench")  # fmt: skip
-    t0 = time.perf_counter()
-    semester_availability(array, targets, sem, {(i, "medium") for i in range(N_TARGETS)}, STEP_S)
-    fast = time.perf_counter() - t0
-    sub = targets.subset(np.arange(SUBSET_TARGETS))
-    nights = sem.nights()[:: N_NIGHTS // SUBSET_NIGHTS][:SUBSET_NIGHTS]
-    t0 = time.perf_counter()
-    astropy_loop(array, sub, sem, nights)
-    slow = time.perf_counter() - t0
-    per_fast = fast / (N_TARGETS * N_NIGHTS)
-    per_slow = slow / (SUBSET_TARGETS * SUBSET_NIGHTS)
-    print(f"availability: {N_TARGETS} targets x {N_NIGHTS} nights at {STEP_S / 60:.0f} min")
-    print(f"  vectorised        : {fast:7.2f} s wall (goal <= 20 s)")
-    print(f"  astropy loop      : {slow:7.2f} s for {SUBSET_TARGETS} targets x "
-          f"{SUBSET_NIGHTS} nights")  # fmt: skip
-    print(f"  ratio per target-night: {per_slow / per_fast:7.1f} x faster")
-
-
-def monte_carlo() -> None:
+def demo(semester: str = "demo_semester.toml") -> Scenario:
     array = load_array(ROOT / "catalogs" / "demo_array.toml")
     targets = load_targets(ROOT / "catalogs" / "demo_targets.csv")
-    sem = load_semester(ROOT / "examples" / "demo_semester_short.toml", array)
+    sem = load_semester(ROOT / "examples" / semester, array)
     requests = load_proposals(ROOT / "examples" / "demo_proposals.csv", targets, array)
-    scn = Scenario(array, targets, sem, tuple(requests))
+    return build_scenario(array, targets, sem, requests)
+
+
+def preparation(scn: Scenario) -> float:
+    """Seconds to prepare every night in this process (tracks included)."""
     t0 = time.perf_counter()
-    serial = simulate(scn, 20, seed=7, workers=1)
-    t_serial = time.perf_counter() - t0
+    tracks = body_tracks(scn.array, scn.semester.start, scn.semester.end)
+    kept = sum(prepare_night(scn, k, tracks) is not None for k in range(len(scn.semester.nights())))
+    wall = time.perf_counter() - t0
+    print(f"preparation: {kept} of {len(scn.semester.nights())} nights in {wall:6.1f} s "
+          f"(goal <= 30 s): {'met' if wall <= 30 else 'MISSED'}")  # fmt: skip
+    return wall
+
+
+def peak_mb() -> float:
+    """Peak resident memory of this process and, separately, of its largest child."""
+    own = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+    child = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss
+    return (own + 2 * child) / 1024.0  # this process and two workers at their peak
+
+
+def local(scn: Scenario, n: int) -> Outcome:
+    t0 = time.perf_counter()
+    out = simulate(scn, n, seed=7, workers=2)
+    wall = time.perf_counter() - t0
+    mb = peak_mb()
+    print(f"{n} realisations on 2 local processes: {wall:6.1f} s (goal <= 120 s: "
+          f"{'met' if wall <= 120 else 'MISSED'}), memory bound {mb:5.0f} MB (goal <= 1024:"
+          f" {'met' if mb <= 1024 else 'MISSED'})")  # fmt: skip
+    return out
+
+
+def on_cluster(scn: Scenario, n: int, workers: int) -> tuple[Outcome, float]:
     from dask.distributed import Client, LocalCluster
 
-    with LocalCluster(n_workers=2, threads_per_worker=1) as cluster, Client(cluster) as client:
+    with LocalCluster(n_workers=workers, threads_per_worker=1, processes=True,
+                      dashboard_address=None) as cluster, Client(cluster) as client:  # fmt: skip
         t0 = time.perf_counter()
-        on_dask = simulate(scn, 20, seed=7, client=client)
-        t_dask = time.perf_counter() - t0
-    print(f"Monte Carlo: 20 realisations of the {len(sem.nights())}-night demo semester")
-    print(f"  serial            : {t_serial:7.1f} s")
-    print(f"  LocalCluster x 2  : {t_dask:7.1f} s   identical: {np.array_equal(serial, on_dask)}")
+        out = simulate(scn, n, seed=7, client=client)
+        return out, time.perf_counter() - t0
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--realisations", type=int, default=100)
+    args = parser.parse_args()
+    scn = demo()
+    print(f"demo semester: {len(scn.semester.nights())} nights, {len(scn.requests)} requests, "
+          f"pool of {len(scn.targets)} targets")  # fmt: skip
+    preparation(scn)
+    ref = local(scn, args.realisations)
+    one, t1 = on_cluster(scn, args.realisations, 1)
+    two, t2 = on_cluster(scn, args.realisations, 2)
+    same = np.array_equal(ref.hours, one.hours) and np.array_equal(ref.hours, two.hours)
+    print(f"LocalCluster, 1 worker : {t1:6.1f} s")
+    print(f"LocalCluster, 2 workers: {t2:6.1f} s   speed-up {t1 / t2:4.2f}x (goal >= 1.7: "
+          f"{'met' if t1 / t2 >= 1.7 else 'MISSED'})")  # fmt: skip
+    print(f"identical numbers on local processes and both clusters: {same}")
 
 
 if __name__ == "__main__":
-    availability()
-    monte_carlo()
+    main()
