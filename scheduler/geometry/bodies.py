@@ -1,7 +1,7 @@
 """Sun and Moon over a night: directions sampled at nodes and interpolated.
 
 Pure numpy.  :mod:`scheduler.astro.ephemeris` samples each body's CIRS direction with
-astropy at nodes (every 20 minutes for the Moon, 3 hours for the Sun); between nodes the
+ERFA routines at nodes (every 20 minutes for the Moon, 3 hours for the Sun); between nodes the
 unit vector is interpolated linearly and renormalised (the topocentric Moon's parallax
 turns with the Earth, so the chord error is some tens of arcseconds at hourly nodes and
 a few at 20 minutes, far inside any Moon-distance limit) and rotated to the horizon by
