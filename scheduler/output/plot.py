@@ -169,3 +169,37 @@ def pressure_png(pressure: list[dict]) -> bytes:
     fig.savefig(buf, format="png", dpi=100, bbox_inches="tight")
     plt.close(fig)
     return buf.getvalue()
+
+
+def uv_png(doc: dict) -> bytes:
+    """A PNG of each target's (u, v) plane in mega-wavelengths (``opdplan uv --json``
+    document): every baseline's samples and their mirrors, one colour per baseline."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    targets = doc["targets"] or [None]
+    fig, axes = plt.subplots(1, len(targets), figsize=(4.6 * len(targets), 4.6), squeeze=False)
+    for ax, t in zip(axes[0], targets, strict=True):
+        if t is None:
+            ax.set_title("no science visit")
+            continue
+        for b in t["baselines"]:
+            u = [s["u_mlambda"] for s in b["samples"]]
+            v = [s["v_mlambda"] for s in b["samples"]]
+            line = ax.plot(u, v, ".", ms=3, label=b["name"])[0]
+            ax.plot([-x for x in u], [-y for y in v], ".", ms=3, color=line.get_color(),
+                    alpha=0.5)  # fmt: skip
+        ax.set_aspect("equal")
+        ax.invert_xaxis()  # east to the left, as on the sky
+        ax.set_xlabel("u, mega-wavelengths")
+        ax.set_ylabel("v, mega-wavelengths")
+        ax.set_title(f"{t['target']} ({t['wavelength_um']:g} um)")
+        ax.legend(fontsize="x-small", loc="upper left", bbox_to_anchor=(1.0, 1.0))
+    fig.suptitle(f"(u, v) coverage, night of {doc['night']['date']}, "
+                 f"{doc['configuration']} (advisory)")  # fmt: skip
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=100, bbox_inches="tight")
+    plt.close(fig)
+    return buf.getvalue()
