@@ -18,7 +18,12 @@ import numpy as np
 import pandas as pd
 
 from scheduler.model.errors import InputError, Problem, ProblemList
-from scheduler.model.targets import MAS_TO_RAD, Targets
+from scheduler.model.targets import (
+    HOUR_ANGLE_RAD_PER_H,
+    MAS_TO_RAD,
+    Targets,
+    spread_separation_s,
+)
 from scheduler.model.times import parse_utc
 
 KINDS = ("science", "calibrator")
@@ -27,7 +32,7 @@ KNOWN = REQUIRED + (
     "kind", "program", "priority", "visits", "min_visits", "min_separation_min",
     "needs_calibrator",
     "mag", "diameter_mas", "pm_ra_mas_yr", "pm_dec_mas_yr", "window_start_utc",
-    "window_end_utc", "mode", "diameter_err_mas", "limb_darkening",
+    "window_end_utc", "mode", "diameter_err_mas", "limb_darkening", "ha_spread_h",
 )  # fmt: skip
 BAND_COLUMN = re.compile(r"^mag_([A-Za-z][A-Za-z0-9]*)$")
 
@@ -133,7 +138,7 @@ class _Rows:
 
 
 _NUMERIC = ("ra", "dec", "pm_ra", "pm_dec", "priority", "duration", "visits", "min_visits",
-            "sep", "mag", "diam", "ws", "we", "diam_err", "limb")  # fmt: skip
+            "sep", "mag", "diam", "ws", "we", "diam_err", "limb", "spread")  # fmt: skip
 
 
 def _position(r: _Rows, i: int, out: dict[str, np.ndarray]) -> None:
@@ -168,6 +173,7 @@ def _visit_columns(r: _Rows, i: int, science: bool, out: dict[str, np.ndarray]) 
     out["diam"][i] = r.number("diameter_mas", i, math.nan, 0.0, 1e6)
     out["diam_err"][i] = r.number("diameter_err_mas", i, math.nan, 0.0, 1e6)
     out["limb"][i] = r.number("limb_darkening", i, math.nan, 0.0, 1.0)
+    out["spread"][i] = r.number("ha_spread_h", i, 0.0, 0.0, 12.0)
     out["pm_ra"][i] = r.number("pm_ra_mas_yr", i, 0.0)
     out["pm_dec"][i] = r.number("pm_dec_mas_yr", i, 0.0)
 
@@ -249,12 +255,13 @@ def parse_targets(frame: pd.DataFrame, source: str = "<targets>",
         is_science=science, program=tuple(r.get("program", i) for i in range(n)),
         priority=out["priority"], duration_s=out["duration"] * 60.0,
         visits=out["visits"].astype(int), min_visits=np.nan_to_num(out["min_visits"], nan=1.0)
-        .astype(int), min_separation_s=out["sep"] * 60.0,
+        .astype(int), min_separation_s=spread_separation_s(
+            out["sep"] * 60.0, out["spread"] * HOUR_ANGLE_RAD_PER_H, out["duration"] * 60.0),
         needs_calibrator=needs & science, mag=out["mag"], diameter_rad=out["diam"] * MAS_TO_RAD,
         window_start_s=out["ws"], window_end_s=out["we"], extra=extra, source=source,
         mode=tuple(r.get("mode", i) for i in range(n)), band_mags=bands,
         diameter_err_rad=out["diam_err"] * MAS_TO_RAD, limb_darkening=out["limb"],
-        row=np.arange(n) + r.first,
+        row=np.arange(n) + r.first, ha_spread_rad=out["spread"] * HOUR_ANGLE_RAD_PER_H,
     )  # fmt: skip
 
 

@@ -48,17 +48,27 @@ class NightProblem:
     mode_index: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
     faint: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
     conditions: Conditions = Conditions()
+    #: per target, mid-visit hour angles (rad) of its visits on earlier nights with this
+    #: configuration (a campaign's; empty: none known)
+    past_hour_angles: tuple[tuple[float, ...], ...] = ()
 
     def __post_init__(self) -> None:
         n = len(self.targets)
         for name in ("mode_index", "faint"):
             if len(getattr(self, name)) != n:
                 object.__setattr__(self, name, np.zeros(n, int))
+        if len(self.past_hour_angles) != n:
+            object.__setattr__(self, "past_hour_angles", ((),) * n)
 
     @property
     def wavelength_m(self) -> np.ndarray:
         """Each target's effective wavelength (its mode's), metres."""
         return np.array([m.wavelength_m for m in self.modes])[self.mode_index]
+
+    def hour_angle_rad(self, i: int, t_s: np.ndarray | float) -> np.ndarray:
+        """Target ``i``'s hour angle at ``t_s`` (rad in (-pi, pi], positive west), from
+        the night's sidereal time and its apparent place."""
+        return np.angle(np.exp(1j * (self.night.lst_rad(t_s) - self.ri_rad[i])))
 
     def mode_of(self, i: int) -> Mode:
         return self.modes[int(self.mode_index[i])]
@@ -68,7 +78,8 @@ class NightProblem:
         i = np.asarray(idx, int)
         return replace(self, targets=self.targets.subset(i), ri_rad=self.ri_rad[i],
                        di_rad=self.di_rad[i], mode_index=self.mode_index[i],
-                       faint=self.faint[i])  # fmt: skip
+                       faint=self.faint[i],
+                       past_hour_angles=tuple(self.past_hour_angles[k] for k in i))  # fmt: skip
 
     def ignoring_brightness(self) -> NightProblem:
         """The same night with every target taken as bright enough (the brightness is

@@ -22,6 +22,20 @@ class Kind(StrEnum):
     CALIBRATOR = "calibrator"
 
 
+HOUR_ANGLE_RAD_PER_H = np.pi / 12.0
+SIDEREAL_PER_SOLAR = 1.00273790935  # hour angle advances this much faster than UTC
+
+
+def spread_separation_s(separation_s: np.ndarray, spread_rad: np.ndarray,
+                        duration_s: np.ndarray) -> np.ndarray:  # fmt: skip
+    """The gap between two visits of one night that keeps their mid-visit hour angles
+    ``spread_rad`` apart: the hour angle moves at the sidereal rate and mid-visits are a
+    visit length plus the gap apart, so the gap is at least
+    ``spread / sidereal rate - duration`` (and at least ``separation_s``)."""
+    needed = spread_rad / (2 * np.pi / 86400.0 * SIDEREAL_PER_SOLAR) - duration_s
+    return np.where(spread_rad > 0, np.maximum(separation_s, needed), separation_s)
+
+
 @dataclass(frozen=True, eq=False)
 class Targets:
     """N targets as parallel arrays.
@@ -35,7 +49,12 @@ class Targets:
     uncertainty and ``limb_darkening`` a linear limb-darkening coefficient (NaN: a
     uniform disk); ``row`` is each target's line in its file.  A science target wants
     ``visits`` visits and earns its value only once ``min_visits`` of them are made.
-    ``extra`` keeps the catalog's other columns.
+    ``ha_spread_rad``: the least hour-angle difference (rad, mid-visit to mid-visit)
+    between any two visits of the target, tonight's and those of earlier nights (0: none;
+    within a night it raises ``min_separation_s``, see :func:`spread_separation_s`).
+    ``value_weight`` scales what a visit earns and how the greedy queue ranks it (1;
+    a campaign lowers it as a target's coverage fills, see
+    :mod:`scheduler.queue.campaign`).  ``extra`` keeps the catalog's other columns.
     """
 
     names: tuple[str, ...]
@@ -62,13 +81,16 @@ class Targets:
     diameter_err_rad: np.ndarray = field(default_factory=lambda: np.zeros(0))
     limb_darkening: np.ndarray = field(default_factory=lambda: np.zeros(0))
     row: np.ndarray = field(default_factory=lambda: np.zeros(0, int))
+    ha_spread_rad: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    value_weight: np.ndarray = field(default_factory=lambda: np.zeros(0))
 
     def __post_init__(self) -> None:  # catalogs built in code may leave these out
         n = len(self.names)
         if len(self.mode) != n:
             object.__setattr__(self, "mode", ("",) * n)
         for name, fill in (("diameter_err_rad", np.nan), ("limb_darkening", np.nan),
-                           ("row", 0)):  # fmt: skip
+                           ("row", 0), ("ha_spread_rad", 0.0),
+                           ("value_weight", 1.0)):  # fmt: skip
             if len(getattr(self, name)) != n:
                 object.__setattr__(self, name, np.full(n, fill))
 

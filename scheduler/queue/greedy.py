@@ -80,8 +80,9 @@ def greedy_sequence(q: QueueInputs, origin: Start | None = None) -> Sequence:
     """A sequence of (candidate, start) chosen greedily by priority; with ``origin`` it
     starts from that state (a replan) instead of the start of the night."""
     targets, end_s = q.problem.targets, q.problem.night.end_s
+    rank = targets.priority * targets.value_weight
     science = sorted((c for c in q.candidates if c.is_science),
-                     key=lambda c: (-targets.priority[c.target], c.number))  # fmt: skip
+                     key=lambda c: (-rank[c.target], c.number))  # fmt: skip
     st = _initial(q, science, origin)
     lead = q.settings.calibrator_gap_s + max(
         [c.duration_s for c in q.candidates if not c.is_science], default=0.0)

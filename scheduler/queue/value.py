@@ -47,6 +47,7 @@ class ValueRule:
                   if settings.strict_priority else targets.priority.astype(float))  # fmt: skip
         if settings.value_per_hour:
             weight = weight * targets.duration_s / 3600.0
+        weight = weight * targets.value_weight
         return cls(np.where(science, weight, 0.0), targets.min_visits.astype(int))
 
     def earned(self, counts: dict[int, int]) -> float:
