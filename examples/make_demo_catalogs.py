@@ -57,8 +57,10 @@ SCI_NOTES = ["", "", "suspected close companion", "variable; check recent bright
 CAL_NOTES = ["", "", "single star; stable", "check for a faint companion", "well measured size"]
 COLUMNS = ["name", "ra", "dec", "kind", "program", "priority", "duration_min", "visits",
            "min_separation_min", "needs_calibrator", "mode", "mag_H", "mag_K", "mag_V",
-           "diameter_mas", "diameter_err_mas", "limb_darkening", "window_start_utc",
-           "window_end_utc", "notes"]
+           "diameter_mas", "diameter_err_mas", "limb_darkening", "ha_spread_h",
+           "window_start_utc", "window_end_utc", "notes"]
+#: the imaging target of the demo campaign (examples/demo_campaign.toml)
+IMAGING = "Ember-04"
 # observing modes of the fictional beam combiner (invented values)
 MODES = [
     {"name": "near-ir-low", "wavelength_um": 1.65, "bandwidth_um": 0.30, "tracking_band": "H",
@@ -304,6 +306,9 @@ def main():
     cals = make_calibrators(rng, science)
     assert len(cals) >= 44 and all(covered(s, cals) for s in science if s["needs_calibrator"])
     cals = cals + add_photometry(science, cals)
+    for r in science:  # the demo's imaging target: visits spread over hour angle
+        if r["name"] == IMAGING:
+            r.update(ha_spread_h=1.5, notes="imaging; see examples/demo_campaign.toml")
     OUT.mkdir(exist_ok=True)
     write_array_toml(OUT / "demo_array.toml")
     n_sexa = write_targets_csv(OUT / "demo_targets.csv", science + cals, rng)

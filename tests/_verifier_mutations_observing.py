@@ -27,6 +27,7 @@ from _verifier_cases import (
     planned_science,
     set_band,
     tracking_mag,
+    utc,
 )
 
 from scheduler.model.array import Mode
@@ -276,3 +277,36 @@ def rules_wavelength_kept(c: Case) -> None:
     """README.md, *Outputs*: the wavelength is each visit's mode's, not a rule."""
     c.doc["rules"]["wavelength_um"] = 1.65
 
+
+
+# ---------------------------------------------------------------- campaigns
+
+SIDEREAL_DAY_S = 86164.0905  # the hour angle repeats after one sidereal day (IERS)
+
+
+def _campaign_block(c: Case, target: str, wanted: int, earlier_mid_s: float) -> None:
+    """A campaign block claiming one visit of ``target`` on the night before, in the
+    plan's configuration, centred on ``earlier_mid_s``."""
+    v = next(x for x in c.doc["visits"] if x["target"] == target)
+    half = 0.5 * (v["end_s"] - v["start_s"])
+    c.doc["campaign"] = {"name": "test", "source": "", "targets": [{
+        "target": target, "visits": {c.doc["configuration"]: wanted}, "ha_spread_h": 1.0,
+        "done": [{"night": "2027-04-17", "visit": f"{target}#1",
+                  "configuration": c.doc["configuration"],
+                  "start_utc": utc(earlier_mid_s - half), "end_utc": utc(earlier_mid_s + half)}],
+    }]}  # fmt: skip
+
+
+def hour_angle_spread_repeats_an_earlier_night(c: Case) -> None:
+    """README.md, *Campaigns*: a visit one sidereal day after an earlier one has the same
+    hour angle, inside any spread (here 1 h)."""
+    v = next(x for x in c.doc["visits"] if x["target"] == "Tide-05")
+    _campaign_block(c, "Tide-05", 5, 0.5 * (v["start_s"] + v["end_s"]) - SIDEREAL_DAY_S)
+
+
+def visits_per_target_beyond_the_campaign(c: Case) -> None:
+    """README.md, *Campaigns*: tonight a campaign target has only the visits its campaign
+    still wants (1 wanted, 1 done on the night before: none left)."""
+    v = next(x for x in c.doc["visits"] if x["target"] == "Tide-05")
+    _campaign_block(c, "Tide-05", 1, 0.5 * (v["start_s"] + v["end_s"]) - SIDEREAL_DAY_S
+                    - 6 * 3600.0)  # fmt: skip

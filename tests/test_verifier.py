@@ -39,6 +39,7 @@ from _verifier_mutations_observing import (
     conditions_better_seeing_given,
     conditions_block_missing,
     conditions_wind_given,
+    hour_angle_spread_repeats_an_earlier_night,
     mode_bandwidth_changed,
     mode_catalog_moves_target,
     mode_catalog_unknown,
@@ -48,6 +49,7 @@ from _verifier_mutations_observing import (
     rules_wavelength_kept,
     transition_mode_setup_outgrows_the_gap,
     visibility_science_target_resolved,
+    visits_per_target_beyond_the_campaign,
     wind_everywhere_in_the_plans_conditions,
 )
 from _verifier_mutations_plan import (
@@ -210,6 +212,8 @@ MUTATIONS = [
     Mutation("overlap", overlap_file_order, only=True),
     Mutation("visits_per_target", visits_repeated),
     Mutation("separation", separation_too_short),
+    Mutation("hour_angle_spread", hour_angle_spread_repeats_an_earlier_night, only=True),
+    Mutation("visits_per_target", visits_per_target_beyond_the_campaign, only=True),
     Mutation("calibrator_copies", calibrator_copied_four_times),
     Mutation("bracket", bracket_calibrator_deleted, only=True),
     Mutation("bracket", bracket_no_calibrator_before, only=True),

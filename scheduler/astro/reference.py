@@ -62,3 +62,21 @@ def body_hadec(name: str, lat_deg: float, lon_deg: float, height_m: float,
     hadec = HADec(obstime=frame.obstime, location=frame.location, pressure=0 * u.hPa)
     hd = get_body(name, frame.obstime, location=frame.location).transform_to(hadec)
     return hd.ha.rad, hd.dec.rad
+
+
+def star_hour_angle(lat_deg: float, lon_deg: float, height_m: float, ra_deg: np.ndarray,
+                    dec_deg: np.ndarray, pm_ra_cosdec_mas_yr: np.ndarray,
+                    pm_dec_mas_yr: np.ndarray, t_unix: np.ndarray) -> np.ndarray:
+    """Topocentric apparent hour angle (rad, positive west, unrefracted) of ICRS J2000.0
+    positions with proper motion, one per instant ``t_unix``."""
+    frame = _frame(lat_deg, lon_deg, height_m, t_unix)
+    star = SkyCoord(ra=np.asarray(ra_deg) * u.deg, dec=np.asarray(dec_deg) * u.deg,
+                    pm_ra_cosdec=np.asarray(pm_ra_cosdec_mas_yr) * u.mas / u.yr,
+                    pm_dec=np.asarray(pm_dec_mas_yr) * u.mas / u.yr, obstime=J2000,
+                    frame="icrs")  # fmt: skip
+    with warnings.catch_warnings():
+        warnings.filterwarnings("ignore", category=ErfaWarning, message=".*distance overridden")
+        moved = star.apply_space_motion(new_obstime=frame.obstime)
+    hadec = HADec(obstime=frame.obstime, location=frame.location, pressure=0 * u.hPa)
+    hd = SkyCoord(ra=moved.ra, dec=moved.dec, frame="icrs").transform_to(hadec)
+    return np.asarray(hd.ha.wrap_at(180 * u.deg).rad)

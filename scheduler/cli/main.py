@@ -23,11 +23,22 @@ from scheduler.model.errors import InputError
 
 def _command(name: str) -> Callable[..., Any]:
     """The ``run`` function of a command (imported only when used)."""
-    from scheduler.cli.commands import delays, fit, log, plan, replan, verify, windows
+    from scheduler.cli.commands import (
+        campaign,
+        delays,
+        fit,
+        log,
+        plan,
+        replan,
+        uv,
+        verify,
+        windows,
+    )
 
     table: dict[str, Callable[..., Any]] = {
         "windows": windows.run, "delays": delays.run, "plan": plan.run, "demo": plan.demo,
         "verify": verify.run, "replan": replan.run, "log": log.run, "fit": fit.run,
+        "uv": uv.run, "campaign": campaign.run,
     }  # fmt: skip
     return table[name]
 

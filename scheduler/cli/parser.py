@@ -68,6 +68,9 @@ def _plan_commands(sub: argparse._SubParsersAction) -> None:
     _night_options(pl)
     _solver_options(pl, 20.0)
     condition_options(pl)
+    pl.add_argument("--campaign", help="campaign file (TOML): visits wanted per configuration")
+    pl.add_argument("--campaign-log", metavar="DIR",
+                    help="folder of the night logs that count towards --campaign")
     pl.add_argument("--out", help="write the plan here (JSON, schema opdplan-plan/1)")
     pl.add_argument("--csv", help="write the visits here as CSV")
     pl.add_argument("--votable", help="write the visits here as an IVOA VOTable")
@@ -152,6 +155,30 @@ def _other_commands(sub: argparse._SubParsersAction) -> None:
     d.add_argument("--target", help="target name in --targets (instead of --ra/--dec)")
     d.add_argument("--targets", help="target catalog, with --target")
     d.add_argument("--step-min", type=float, default=10.0, help="sample spacing, minutes")
+    uv = _sub(sub, "uv", "(u, v) tracks and coverage of a target or of a plan's targets",
+              "--array catalogs/demo_array.toml --config long --targets "
+              "catalogs/demo_targets.csv --night 2027-04-18 --target Heron-05")  # fmt: skip
+    uv.add_argument("--target", help="target name in --targets: tracks over its windows")
+    uv.add_argument("--plan", help="plan file: tracks of every science target over its visits")
+    uv.add_argument("--array", help="array file (default with --plan: the plan's)")
+    uv.add_argument("--config", help="configuration (with --target)")
+    uv.add_argument("--targets", help="target catalog (default with --plan: the plan's)")
+    uv.add_argument("--night", help="local date of the night's evening (with --target)")
+    uv.add_argument("--step-min", type=float, default=5.0, help="sample spacing, minutes")
+    uv.add_argument("--fill-radius-m", type=float, metavar="M",
+                    help="distance within which a sample fills the (u, v) plane "
+                    "(default: a tenth of the longest baseline)")  # fmt: skip
+    uv.add_argument("--plot", help="write a PNG of the (u, v) plane")
+    uv.add_argument("--json", action="store_true", help="print JSON instead of the view")
+    cp = _sub(sub, "campaign", "what an imaging campaign has done and what is left",
+              "--campaign examples/demo_campaign.toml --log logs --array "
+              "catalogs/demo_array.toml --targets catalogs/demo_targets.csv")  # fmt: skip
+    cp.add_argument("--campaign", required=True, help="campaign file (TOML)")
+    cp.add_argument("--log", required=True, metavar="DIR",
+                    help="folder of night logs (*.jsonl) written by opdplan log")
+    cp.add_argument("--array", required=True, help="array file (TOML)")
+    cp.add_argument("--targets", required=True, help="target catalog")
+    cp.add_argument("--json", action="store_true", help="print JSON instead of the view")
     ft = _sub(sub, "fit", "will the proposals fit the semester?",
               "--semester examples/demo_semester.toml --array catalogs/demo_array.toml "
               "--targets catalogs/demo_targets.csv --proposals examples/demo_proposals.csv")

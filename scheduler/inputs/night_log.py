@@ -12,7 +12,9 @@ plan's, carriage paths finite and inside each line's range.
 
 Records (all times ISO 8601 UTC with ``Z``; ``logged_utc`` is when it was written):
 
-- ``{"event": "done" | "aborted", "visit": ID, "at_utc"}``
+- ``{"event": "done" | "aborted", "visit": ID, "at_utc"[, "target", "configuration",
+  "night", "duration_s", "planned_end_utc"]}``: what the plan said of the visit is kept
+  with it, so that a campaign can count the visits of many nights from their logs alone
 - ``{"event": "closed", "from_utc", "to_utc"}``: domes closed (weather)
 - ``{"event": "out" | "back", "station": NAME | "delay_line": NAME, "at_utc"}``
 - ``{"event": "carriages", "at_utc", "opd_m": {LINE: metres}}``
@@ -171,7 +173,7 @@ def _record(data: Any, n: int, p: ProblemList) -> LogRecord | None:
     if event in (Event.DONE, Event.ABORTED):
         if not isinstance(data.get("visit"), str):
             p.add(where, f"{event}: missing 'visit'")
-        return LogRecord(n, event, at_s=at, visit=data.get("visit"))
+        return _visit_record(data, n, event, at, p)
     if event is Event.CONDITIONS:
         return _conditions(data, n, at, p)
     if event in (Event.OUT, Event.BACK):
@@ -180,6 +182,26 @@ def _record(data: Any, n: int, p: ProblemList) -> LogRecord | None:
             p.add(where, f"{event}: give exactly one of 'station' or 'delay_line'")
         return LogRecord(n, event, at_s=at, station=st, delay_line=dl)
     return _carriages(data, n, at, p)
+
+
+def _visit_record(data: dict[str, Any], n: int, event: Event, at: float | None,
+                  p: ProblemList) -> LogRecord:  # fmt: skip
+    """A done or aborted visit, with what the plan said of it when the log has it."""
+    about = {k: data.get(k) for k in ("target", "configuration", "night")}
+    for key, value in about.items():
+        if value is not None and not isinstance(value, str):
+            p.add(f"line {n}", f"{event}: {key!r} must be a string, got {value!r}")
+            about[key] = None
+    length = data.get("duration_s")
+    if length is not None and (isinstance(length, bool) or not isinstance(length, int | float)
+                               or not math.isfinite(length) or length <= 0):  # fmt: skip
+        p.add(f"line {n}", f"{event}: 'duration_s' must be a positive number, got {length!r}")
+        length = None
+    planned = _utc(data, "planned_end_utc", f"line {n}", p) if "planned_end_utc" in data else None
+    return LogRecord(n, event, at_s=at, visit=data.get("visit"), target=about["target"],
+                     configuration=about["configuration"], night=about["night"],
+                     duration_s=None if length is None else float(length),
+                     planned_end_s=planned)  # fmt: skip
 
 
 def _carriages(data: dict[str, Any], n: int, at: float | None, p: ProblemList) -> LogRecord | None:

@@ -34,6 +34,13 @@ class LogRecord:
     coherence_ms: float | None = None
     wind_speed_m_s: float | None = None
     wind_from_deg: float | None = None
+    #: a done visit as the plan described it (for campaigns): target, configuration,
+    #: night date (ISO) and visit length in seconds
+    target: str | None = None
+    configuration: str | None = None
+    night: str | None = None
+    duration_s: float | None = None
+    planned_end_s: float | None = None
 
     @property
     def when_s(self) -> float | None:

@@ -22,6 +22,7 @@ from scheduler.geometry.delay import line_paths
 from scheduler.inputs.plan_file import SCHEMA
 from scheduler.inputs.provenance import input_ref
 from scheduler.model.array import ArrayModel
+from scheduler.model.campaign import CampaignState
 from scheduler.model.conditions import Conditions
 from scheduler.model.plan import Plan, PlanSettings, Start, Visit
 from scheduler.model.problem import NightProblem
@@ -104,10 +105,26 @@ def _array_part(problem: NightProblem, array: ArrayModel) -> dict[str, Any]:
     }  # fmt: skip
 
 
+def campaign_entry(state: CampaignState) -> dict[str, Any]:
+    """The ``campaign`` block: each target's visits wanted per configuration, its
+    hour-angle spread and the visits done on earlier nights."""
+    c = state.campaign
+    return {"name": c.name, "source": c.source, "targets": [
+        {"target": t.target, "visits": dict(t.visits),
+         "ha_spread_h": None if t.ha_spread_rad is None else round(
+             float(t.ha_spread_rad) * 12.0 / np.pi, 6),
+         "done": [{"night": d.night.isoformat(), "visit": d.visit,
+                   "configuration": d.configuration, "start_utc": iso_utc_ms(d.start_s),
+                   "end_utc": iso_utc_ms(d.end_s)} for d in state.done_of(t.target)]}
+        for t in c.targets]}  # fmt: skip
+
+
 def plan_document(problem: NightProblem, array: ArrayModel, plan: Plan,
-                  settings: PlanSettings) -> dict[str, Any]:  # fmt: skip
-    """The ``opdplan-plan/1`` document of ``plan``."""
+                  settings: PlanSettings,
+                  campaign: CampaignState | None = None) -> dict[str, Any]:  # fmt: skip
+    """The ``opdplan-plan/1`` document of ``plan`` (made for ``campaign`` if given)."""
     night = problem.night
+    extra = {"campaign": campaign_entry(campaign)} if campaign is not None else {}
     return {
         "schema": SCHEMA, "created_utc": iso_utc(time.time()), "advisory": ADVISORY,
         "night": {"date": night.date.isoformat(), "start_utc": iso_utc_ms(night.start_s),
@@ -121,6 +138,7 @@ def plan_document(problem: NightProblem, array: ArrayModel, plan: Plan,
         "backups": [{"hour_utc": iso_utc(h), "targets": list(names)} for h, names in plan.backups],
         "inputs": {"array": input_ref(array.source), "targets": input_ref(problem.targets.source)},
         "summary": plan.summary.as_dict(),
+        **extra,
     }  # fmt: skip
 
 
@@ -172,6 +190,8 @@ def replan_document(problem: NightProblem, array: ArrayModel, plan: Plan, settin
     configuration, recomputes them), ``out``, ``closures``, ``start_state`` and
     ``diff``."""
     doc = plan_document(problem, array, plan, settings)
+    if old.get("campaign"):  # a campaign's plan stays one when replanned
+        doc["campaign"] = old["campaign"]
     done = done_entries(done_problem or problem, old, sit)
     lines = problem.beams.line_names
     opd = None

@@ -10,6 +10,7 @@ import numpy as np
 from scheduler.geometry.windows import TargetWindows, observable_windows
 from scheduler.model.plan import Candidate, PlanSettings
 from scheduler.model.problem import NightProblem
+from scheduler.queue.campaign import cut_for_spread
 from scheduler.queue.candidates import build_candidates, calibrator_errors, suitable_calibrators
 from scheduler.queue.grid import GeometryGrid, GridTransitions
 from scheduler.queue.value import ValueRule
@@ -51,6 +52,7 @@ def prepare_queue(problem: NightProblem, settings: PlanSettings) -> QueueInputs:
     suits = suitable_calibrators(problem, settings, errors)
     rule = ValueRule.of(problem.targets, settings)
     cands = build_candidates(problem.targets, windows, suits, settings, rule.per_visit)
+    cands = cut_for_spread(problem, cands)
     grid = GeometryGrid.build(problem)
     tr = GridTransitions(grid, problem.beams, problem.overheads, GRID_PAD_S,
                          setup_matrix(problem))  # fmt: skip

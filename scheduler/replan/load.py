@@ -4,22 +4,24 @@ it was made from (or the ones given), ``--now``, and the night log."""
 from __future__ import annotations
 
 from dataclasses import dataclass
-from pathlib import Path
 from typing import Any
 
 from scheduler.astro.night import find_night
 from scheduler.astro.problem import night_problem
 from scheduler.inputs.array_file import load_array
+from scheduler.inputs.campaign_file import campaign_of_plan
 from scheduler.inputs.catalog import load_targets
 from scheduler.inputs.night_log import LogTerms, read_log
 from scheduler.inputs.plan_file import read_plan
-from scheduler.inputs.provenance import file_sha256
+from scheduler.inputs.provenance import plan_input
 from scheduler.model.array import ArrayModel
+from scheduler.model.campaign import CampaignState
 from scheduler.model.errors import Gather, InputError, Problem
 from scheduler.model.plan import Start
 from scheduler.model.problem import NightProblem
 from scheduler.model.targets import Targets
 from scheduler.model.times import iso_utc, parse_night, utc_option
+from scheduler.queue.campaign import campaign_night
 from scheduler.replan.situation import Situation, origin_of, read_situation
 
 
@@ -27,7 +29,8 @@ from scheduler.replan.situation import Situation, origin_of, read_situation
 class Replan:
     """A replan's inputs: the array, the night problem of what is left (lines out
     removed), the restart state, the previous plan document, the situation, and the
-    night with every line of the configuration (for the visits already done)."""
+    night with every line of the configuration (for the visits already done), and the
+    campaign the plan was made for (None: none)."""
 
     array: ArrayModel
     problem: NightProblem
@@ -35,23 +38,7 @@ class Replan:
     previous: dict[str, Any]
     situation: Situation
     full: NightProblem
-
-
-def _source(doc: dict[str, Any], plan_path: str, key: str, given: str | None,
-            g: Gather) -> str | None:  # fmt: skip
-    """The file to read for ``key`` (array or targets): the one given, else the plan's."""
-    if given is not None:
-        return given
-    ref = doc.get("inputs", {}).get(key)
-    if not ref or not Path(ref["path"]).exists():
-        g.add(plan_path, f"inputs.{key}", f"the {key} file is not known or not found; "
-              f"pass --{key}")  # fmt: skip
-        return None
-    if ref.get("sha256") and file_sha256(ref["path"]) != ref["sha256"]:
-        g.add(plan_path, f"inputs.{key}", f"{ref['path']} changed since the plan was made; "
-              f"pass --{key} to use it anyway")  # fmt: skip
-        return None
-    return str(ref["path"])
+    campaign: CampaignState | None = None
 
 
 def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | None = None,
@@ -65,9 +52,9 @@ def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | 
     targets: Targets | None = None
     terms: LogTerms | None = None
     if doc is not None:
-        src = _source(doc, plan_path, "array", array_path, g)
+        src = plan_input(doc, plan_path, "array", array_path, g)
         array = g.take(load_array, src) if src else None
-        src = _source(doc, plan_path, "targets", targets_path, g)
+        src = plan_input(doc, plan_path, "targets", targets_path, g)
         modes = [m.name for m in array.modes] if array is not None else None
         targets = g.take(load_targets, src, modes) if src else None
         terms = LogTerms.of_plan(doc, plan_path)
@@ -90,4 +77,13 @@ def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | 
     problem = night_problem(array, beams, targets, night, conditions=sit.conditions)
     full = night_problem(array, array.beams(doc["configuration"]), targets, night,
                          conditions=sit.conditions) if sit.out else problem  # fmt: skip
-    return Replan(array, problem, origin_of(problem, doc, sit), doc, sit, full)
+    state = _campaign(doc)
+    if state is not None:  # the plan was made for a campaign: the replan keeps it
+        problem = campaign_night(problem, state)
+        full = campaign_night(full, state) if sit.out else problem
+    return Replan(array, problem, origin_of(problem, doc, sit), doc, sit, full, state)
+
+
+def _campaign(doc: dict[str, Any]) -> CampaignState | None:
+    got = campaign_of_plan(doc)
+    return None if got is None else CampaignState(*got)

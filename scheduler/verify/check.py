@@ -13,6 +13,7 @@ from scheduler.model.array import ArrayModel
 from scheduler.model.conditions import Conditions
 from scheduler.model.plan import PlanSettings
 from scheduler.model.targets import Targets
+from scheduler.verify.campaign_rules import campaign_allowed, spread_violations
 from scheduler.verify.declared import (
     LineSet,
     configuration_violations,
@@ -118,8 +119,11 @@ def check_plan(doc: dict[str, Any], array: ArrayModel, targets: Targets, setting
     found += problems
     found += _written(plan, array, targets) + _pointing(plan, targets)
     found += brightness_violations(plan.visits, array, targets, conditions)
-    found += count_violations(plan.visits, plan.done, targets, settings.calibrator_copies)
+    found += count_violations(plan.visits, plan.done, targets, settings.calibrator_copies,
+                              campaign_allowed(doc, plan.configuration))  # fmt: skip
     found += separation_violations(plan.visits, plan.done, targets)
+    found += spread_violations(doc, plan.visits + plan.done, array.site, targets,
+                               plan.configuration)  # fmt: skip
     if lines is None:
         return found
     found += configuration_violations(doc, array, lines)

@@ -37,16 +37,21 @@ def _by_target(visits: tuple[Entry, ...], done: tuple[Entry, ...],
 
 
 def count_violations(visits: tuple[Entry, ...], done: tuple[Entry, ...], targets: Targets,
-                     calibrator_copies: int) -> list[Violation]:  # fmt: skip
-    """Science targets visited more often than they ask, calibrators more often than
+                     calibrator_copies: int,
+                     campaign: dict[str, int] | None = None) -> list[Violation]:  # fmt: skip
+    """Science targets visited more often than they ask (a campaign's targets: than the
+    campaign still wants tonight, ``campaign``), calibrators more often than
     ``calibrator_copies``."""
     found = []
+    wanted = campaign or {}
     for name, group in _by_target(visits, done, targets).items():
         i = targets.index(name)
-        if targets.is_science[i] and len(group) > int(targets.visits[i]):
+        allowed = wanted.get(name, int(targets.visits[i]))
+        if targets.is_science[i] and len(group) > allowed:
+            source = "the campaign wants" if name in wanted else "the catalog asks for"
             found.append(Violation("visits_per_target", name,
-                                   f"{len(group)} visits (planned and done), the catalog asks for "
-                                   f"{int(targets.visits[i])}"))  # fmt: skip
+                                   f"{len(group)} visits (planned and done), {source} "
+                                   f"{allowed}"))  # fmt: skip
         if not targets.is_science[i] and len(group) > calibrator_copies:
             found.append(Violation("calibrator_copies", name,
                                    f"{len(group)} visits (planned and done), at most "
@@ -57,7 +62,9 @@ def count_violations(visits: tuple[Entry, ...], done: tuple[Entry, ...], targets
 def separation_violations(visits: tuple[Entry, ...], done: tuple[Entry, ...],
                           targets: Targets) -> list[Violation]:  # fmt: skip
     """Consecutive visits of one target (in time) closer than its minimum separation,
-    measured from the end of one to the start of the next."""
+    measured from the end of one to the start of the next (the catalog's separation,
+    raised by its hour-angle spread within a night; spreads are also rule
+    ``hour_angle_spread``)."""
     found = []
     for name, group in _by_target(visits, done, targets).items():
         need = float(targets.min_separation_s[targets.index(name)])

@@ -34,6 +34,7 @@ RULES: tuple[str, ...] = (
     "overlap",  # two visits overlap, or the file is not in time order
     "visits_per_target",  # more science visits of a target than it asks for
     "separation",  # two visits of one target closer than its minimum separation
+    "hour_angle_spread",  # two visits of one target closer in hour angle than its spread
     "calibrator_copies",  # a calibrator observed more often than allowed
     "bracket",  # a science visit without a suitable calibrator before or after it
     "closure",  # a visit during a logged closure (replans)

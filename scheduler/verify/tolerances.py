@@ -86,3 +86,7 @@ CONDITIONS_TOL = 1e-3
 (arcsec, ms, m/s, deg; plans round them to 1e-4)."""
 DMAG_TOL = 1e-9
 """A calibrator's magnitude difference against the maximum."""
+#: hour angles of visits against a spread: astropy's apparent hour angle and the
+#: planner's sidereal time agree to well under an arcsecond; 2 s of time leans towards
+#: the plan
+HOUR_ANGLE_TOL_RAD = 2.0 * 2 * 3.141592653589793 / 86400.0

@@ -17,6 +17,7 @@ from typing import Any
 from rich.console import Console
 
 from scheduler.model.array import ArrayModel, Beams
+from scheduler.model.campaign import CampaignState
 from scheduler.model.conditions import Conditions
 from scheduler.model.errors import Gather, InputError, Problem
 from scheduler.model.night import Night
@@ -49,12 +50,18 @@ class Inputs:
     warnings: tuple[str, ...] = ()
 
     conditions: Conditions = Conditions()
+    campaign: CampaignState | None = None
 
     def problem(self) -> NightProblem:
         from scheduler.astro.problem import night_problem
 
-        return night_problem(self.array, self.beams, self.targets, self.night,
-                             conditions=self.conditions)  # fmt: skip
+        problem = night_problem(self.array, self.beams, self.targets, self.night,
+                                conditions=self.conditions)  # fmt: skip
+        if self.campaign is None:
+            return problem
+        from scheduler.queue.campaign import campaign_night
+
+        return campaign_night(problem, self.campaign)
 
 
 def check_config(array: ArrayModel | None, config: str, g: Gather) -> None:
@@ -105,7 +112,8 @@ def conditions_of(args: argparse.Namespace, g: Gather) -> Conditions:
 
 
 def finish_inputs(array: ArrayModel, config: str, targets: Targets, date: Any,
-                  conditions: Conditions | None = None) -> Inputs:  # fmt: skip
+                  conditions: Conditions | None = None,
+                  campaign: CampaignState | None = None) -> Inputs:  # fmt: skip
     """The night (NoDarkTime is an input error) and the coverage warning, once every
     input is known to be good."""
     from scheduler.astro.coverage import coverage_warning
@@ -114,7 +122,7 @@ def finish_inputs(array: ArrayModel, config: str, targets: Targets, date: Any,
     night = find_night(array, date)
     warning = coverage_warning(date)
     return Inputs(array, array.beams(config), targets, night, (warning,) if warning else (),
-                  conditions or Conditions())  # fmt: skip
+                  conditions or Conditions(), campaign)  # fmt: skip
 
 
 def load_inputs(array_path: str | Path, config: str, targets: Targets | str | Path,
@@ -169,3 +177,23 @@ def solver_progress(console: Console, quiet: bool, label: str,
 
 def warn(message: str) -> None:
     print(f"opdplan: warning: {message}", file=sys.stderr)
+
+
+def campaign_of(args: argparse.Namespace, array: Any, targets: Any,
+                g: Gather) -> tuple[CampaignState | None, list[str]]:  # fmt: skip
+    """The campaign given with ``--campaign FILE`` and its visits done so far, from the
+    night logs of ``--campaign-log DIR`` (None without a campaign), and warnings."""
+    from scheduler.inputs.campaign_file import load_campaign, load_done
+
+    if getattr(args, "campaign", None) is None:
+        if getattr(args, "campaign_log", None) is not None:
+            g.add("--campaign-log", "", "needs --campaign FILE")
+        return None, []
+    campaign = g.take(load_campaign, args.campaign, targets, array)
+    done: tuple[Any, ...] = ()
+    warnings: list[str] = []
+    if args.campaign_log is not None:
+        got = g.take(load_done, args.campaign_log)
+        if got is not None:
+            done, warnings = got
+    return (CampaignState(campaign, done) if campaign is not None else None), warnings

@@ -96,6 +96,18 @@ def _check_log_path(path: str, g: Gather) -> None:
         g.add("--log", "", f"{path} is not writable")
 
 
+def _visit_facts(doc: dict[str, Any], record: dict[str, Any]) -> dict[str, Any]:
+    """What the plan says of a done or aborted visit (target, configuration, night,
+    length), kept in the record so that campaigns can read logs alone."""
+    visit = next((v for v in doc.get("visits", []) + doc.get("done", [])
+                  if v.get("id") == record.get("visit")), None)  # fmt: skip
+    if visit is None:
+        return {}
+    return {"target": visit["target"], "configuration": doc["configuration"],
+            "night": doc["night"]["date"], "planned_end_utc": visit["end_utc"],
+            "duration_s": round(float(visit["end_s"]) - float(visit["start_s"]), 3)}
+
+
 def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     """Append one record; prints it (JSON)."""
     g = Gather()
@@ -103,6 +115,7 @@ def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     record = _record(args, g)
     _check_log_path(args.log, g)
     if doc is not None:
+        record.update(_visit_facts(doc, record))
         terms = LogTerms.of_plan(doc, args.plan)
         rec = LogRecord(0, Event(args.event), visit=record.get("visit"),
                         station=record.get("station"), delay_line=record.get("delay_line"),

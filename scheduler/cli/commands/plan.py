@@ -11,6 +11,7 @@ from rich.console import Console
 from scheduler.cli.commands.common import (
     Inputs,
     Result,
+    campaign_of,
     check_matplotlib,
     conditions_of,
     demo_file,
@@ -86,7 +87,7 @@ def plan_and_show(inputs: Inputs, settings: PlanSettings, solver: str, outs: lis
     with solver_progress(console, quiet or as_json or solver != "optimize", "planning",
                          settings.time_limit_s) as progress:  # fmt: skip
         plan = plan_night(problem, settings, solver, started_s, progress=progress)
-    doc = plan_document(problem, inputs.array, plan, settings)
+    doc = plan_document(problem, inputs.array, plan, settings, inputs.campaign)
     plan, doc = verified(problem, inputs.array, plan, settings, doc)
     result = Result(outputs=file_outputs(problem, plan, doc, outs),
                     warnings=list(inputs.warnings))  # fmt: skip
@@ -101,17 +102,20 @@ def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     g = Gather()
     check_time_limit(args.time_limit, g)
     array, targets, date = gather_inputs(args.array, args.config, args.targets, args.night, g)
+    inputs_given = [p for p in (args.array, args.targets, args.campaign) if p]
     outs = check_outputs({"--out": args.out, "--csv": args.csv, "--votable": args.votable,
-                          "--plot": args.plot}, [args.array, args.targets], g)  # fmt: skip
+                          "--plot": args.plot}, inputs_given, g)  # fmt: skip
     if args.plot:
         check_matplotlib("--plot", g)
     conditions = conditions_of(args, g)
+    campaign, notes = campaign_of(args, array, targets, g)
     g.raise_if_any()
     settings = PlanSettings(time_limit_s=args.time_limit, seed=args.seed,
                             deterministic=args.deterministic,
                             value_per_hour=args.value_per_hour,
                             strict_priority=args.strict_priority)  # fmt: skip
-    inputs = finish_inputs(array, args.config, targets, date, conditions)
+    inputs = finish_inputs(array, args.config, targets, date, conditions, campaign)
+    inputs = replace(inputs, warnings=inputs.warnings + tuple(notes))
     return plan_and_show(inputs, settings, args.solver, outs, args.json, started_s, console,
                          args.quiet)  # fmt: skip
 
