@@ -11,6 +11,7 @@ import math
 from pathlib import Path
 from typing import Any
 
+from scheduler.inputs.choices_table import read_fixed_delays, read_routing
 from scheduler.inputs.modes_table import read_modes
 from scheduler.inputs.toml_file import read_toml
 from scheduler.model.array import (
@@ -24,7 +25,8 @@ from scheduler.model.array import (
 )
 from scheduler.model.errors import ProblemList
 
-_TOP = {"site", "limits", "overheads", "stations", "delay_lines", "configurations", "modes"}
+_TOP = {"site", "limits", "overheads", "stations", "delay_lines", "configurations", "modes",
+        "fixed_delays", "routing"}
 _SITE = {"name", "latitude_deg", "longitude_deg", "height_m"}
 _LIMITS = {
     "min_altitude_deg",
@@ -115,10 +117,11 @@ def parse_array(data: dict, source: str = "<array>") -> ArrayModel:
     ]
     r.unique([c.name for c in configs], "configurations")
     modes = read_modes(data.get("modes"), r.p)
+    fixed = read_fixed_delays(data.get("fixed_delays"), lines, r.p)
+    free = read_routing(data.get("routing"), r.p)
     problems.raise_if_any()
-    return ArrayModel(
-        site, limits, overheads, tuple(stations), tuple(lines), tuple(configs), source, modes
-    )
+    return ArrayModel(site, limits, overheads, tuple(stations), tuple(lines), tuple(configs),
+                      source, modes, fixed, free)  # fmt: skip
 
 
 def _list(data: dict, key: str, r: _Reader) -> list:

@@ -14,7 +14,7 @@ the station to the combiner without the delay line; the optical path a line must
 from __future__ import annotations
 
 import difflib
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -170,8 +170,19 @@ def _did_you_mean(name: str, choices: list[str]) -> str:
 
 
 @dataclass(frozen=True)
+class FixedDelayOptions:
+    """The fixed delays (optical path, metres) that can be inserted on one delay line
+    for a night; the set-up advisor (``opdplan advise``) chooses among them."""
+
+    line: str
+    options_m: tuple[float, ...]
+
+
+@dataclass(frozen=True)
 class ArrayModel:
-    """A whole array description as loaded from an array file."""
+    """A whole array description as loaded from an array file.  ``fixed_delays`` and
+    ``routing_free`` (any delay line may be fed by any station of a configuration) are
+    the choices a night's set-up may make."""
 
     site: Site
     limits: Limits
@@ -181,6 +192,8 @@ class ArrayModel:
     configurations: tuple[Configuration, ...]
     source: str = ""
     modes: tuple[Mode, ...] = (DEFAULT_MODE,)
+    fixed_delays: tuple[FixedDelayOptions, ...] = ()
+    routing_free: bool = False
 
     def mode(self, name: str) -> Mode:
         """The mode called ``name``; the first mode for an empty name."""
@@ -218,7 +231,10 @@ class ArrayModel:
         ``out`` names stations or delay lines that are unavailable; their lines are
         dropped, so the remaining baselines alone constrain the delay.
         """
-        config = self.configuration(configuration)
+        return self.beams_of(self.configuration(configuration), out)
+
+    def beams_of(self, config: Configuration, out: frozenset[str] = frozenset()) -> Beams:
+        """:meth:`beams` of a configuration given whole (one the file need not hold)."""
         feeds = [(ln, st) for ln, st in config.feeds if ln not in out and st not in out]
         lines = [self.delay_line(ln) for ln, _ in feeds]
         stations = [self.station(st) for _, st in feeds]
@@ -234,3 +250,8 @@ class ArrayModel:
             rate_m_s=np.array([d.max_rate_m_s for d in lines], dtype=float),
             horizons=tuple(s.horizon for s in stations),
         )
+
+    def with_configuration(self, config: Configuration) -> ArrayModel:
+        """The same array with ``config`` added (or replacing the one of its name)."""
+        kept = tuple(c for c in self.configurations if c.name != config.name)
+        return replace(self, configurations=kept + (config,))
