@@ -205,6 +205,10 @@ def make_calibrators(rng, science):
     return cals
 
 
+# fixed delays that can be inserted on two of the lines (invented)
+FIXED_DELAYS = {"rail-2": (0.0, 30.0, 60.0, 90.0), "rail-4": (0.0, 25.0, 50.0, 75.0)}
+
+
 def write_array_toml(path):
     out = ["# FICTIONAL site and array, invented for the opdplan demo.",
            "# No real observatory, station or instrument is described here.",
@@ -233,6 +237,11 @@ def write_array_toml(path):
         if offsets:
             out.append("fixed_offsets_m = { "
                        + ", ".join(f'"{k}" = {v}' for k, v in offsets.items()) + " }")
+    out += ["", "# the set-up choices opdplan advise searches (fixed delays, optical path)"]
+    for line, options in FIXED_DELAYS.items():
+        out += ["", "[[fixed_delays]]", f'line = "{line}"',
+                "options_m = [" + ", ".join(f"{v}" for v in options) + "]"]
+    out += ["", "[routing]", "free = true  # any delay line may take any station"]
     path.write_text("\n".join(out) + "\n")
 
 

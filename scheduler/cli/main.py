@@ -24,6 +24,7 @@ from scheduler.model.errors import InputError
 def _command(name: str) -> Callable[..., Any]:
     """The ``run`` function of a command (imported only when used)."""
     from scheduler.cli.commands import (
+        advise,
         campaign,
         delays,
         fit,
@@ -38,7 +39,7 @@ def _command(name: str) -> Callable[..., Any]:
     table: dict[str, Callable[..., Any]] = {
         "windows": windows.run, "delays": delays.run, "plan": plan.run, "demo": plan.demo,
         "verify": verify.run, "replan": replan.run, "log": log.run, "fit": fit.run,
-        "uv": uv.run, "campaign": campaign.run,
+        "uv": uv.run, "campaign": campaign.run, "advise": advise.run,
     }  # fmt: skip
     return table[name]
 

@@ -195,7 +195,32 @@ def _other_commands(sub: argparse._SubParsersAction) -> None:
     ft.add_argument("--cluster", help="address of a running Dask scheduler (cluster extra)")
     ft.add_argument("--plot", help="write a PNG of the pressure per configuration and LST")
     ft.add_argument("--json", action="store_true", help="print JSON instead of the view")
+    _advise_command(sub)
     _sub(sub, "demo", "plan the fictional demo night end to end", "")
+
+
+def _advise_command(sub: argparse._SubParsersAction) -> None:
+    ad = _sub(sub, "advise", "which configuration, routing and fixed delays serve the pool "
+              "best tonight", "--array catalogs/demo_array.toml --targets "
+              "catalogs/demo_targets.csv --night 2027-04-18 --plot maps")  # fmt: skip
+    ad.add_argument("--array", required=True, help="array file (TOML)")
+    ad.add_argument("--targets", required=True, help="target catalog (CSV, ECSV, VOTable)")
+    ad.add_argument("--night", required=True, help="local date of the night's evening, "
+                    "YYYY-MM-DD")  # fmt: skip
+    ad.add_argument("--configs", metavar="A,B", help="configurations to consider, "
+                    "comma-separated (default: all of the array file)")  # fmt: skip
+    ad.add_argument("--top", type=int, default=5, metavar="N",
+                    help="choices to plan besides each configuration's best and tonight's")
+    ad.add_argument("--step-min", type=float, default=5.0, metavar="MIN",
+                    help="time step of the ranking's observable hours, minutes")
+    ad.add_argument("--solver", choices=("greedy", "optimize"), default="greedy",
+                    help="queue for the planned value of each choice")
+    ad.add_argument("--time-limit", type=float, default=5.0, metavar="S",
+                    help="seconds per planned choice with --solver optimize")
+    ad.add_argument("--seed", type=int, default=0, help="random seed (search, optimiser)")
+    ad.add_argument("--plot", metavar="DIR", help="write a map of the reachable sky per "
+                    "planned choice into this existing folder (PNG and JSON)")  # fmt: skip
+    ad.add_argument("--json", action="store_true", help="print JSON instead of the view")
 
 
 def build_parser(version: str) -> argparse.ArgumentParser:

@@ -69,6 +69,18 @@ def _check_one(option: str, given: str, g: Gather) -> OutputPath | None:
     return OutputPath(option, given, target)
 
 
+def check_folder(option: str, given: str, g: Gather) -> Path | None:
+    """A folder to write several files into: it must exist and be writable."""
+    folder = Path(os.path.realpath(given))
+    if not folder.is_dir():
+        g.add(option, "", f"{given} is not an existing folder")
+        return None
+    if not os.access(folder, os.W_OK | os.X_OK):
+        g.add(option, "", f"the folder {given} is not writable")
+        return None
+    return Path(given)
+
+
 def check_outputs(outputs: dict[str, str | None], inputs: list[str | Path],
                   g: Gather) -> list[OutputPath]:  # fmt: skip
     """The outputs to write (option -> path, None where not asked for), each checked;

@@ -203,3 +203,50 @@ def uv_png(doc: dict) -> bytes:
     fig.savefig(buf, format="png", dpi=100, bbox_inches="tight")
     plt.close(fig)
     return buf.getvalue()
+
+
+def reach_png(doc: dict, opened: set[str] | None = None) -> bytes:
+    """A PNG of one choice's reachable sky (an ``opdplan-reach-map/1`` document): the
+    carriage headroom shaded where every carriage reaches, grey where the altitude is
+    fine but a carriage runs out, blank below the altitude limit; the pool's tracks
+    tonight over it, solid for targets the choice ``opened`` (all when None), dotted
+    for the others, each labelled."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    ha, dec = np.array(doc["ha_h"]), np.array(doc["dec_deg"])
+    room = np.array([[np.nan if v is None else v for v in row] for row in doc["headroom_m"]])
+    ok = np.array(doc["reachable"], bool)
+    fig, ax = plt.subplots(figsize=(10, 5.8))
+    ax.pcolormesh(ha, dec, np.where(~ok & ~np.isnan(room), 1.0, np.nan), cmap="Greys",
+                  vmin=0, vmax=3, shading="nearest")  # fmt: skip
+    shade = ax.pcolormesh(ha, dec, np.where(ok, room, np.nan), cmap="viridis",
+                          shading="nearest")  # fmt: skip
+    fig.colorbar(shade, ax=ax, label="least carriage headroom, m (optical path)")
+    colours = _palette(len(doc["tracks"]))
+    for colour, tr in zip(colours, doc["tracks"], strict=True):
+        x = np.array([np.nan if v is None else v for v in tr["ha_h"]], float)
+        jump = np.abs(np.diff(x, prepend=x[0])) > 12  # no line across the wrap at 12 h
+        x = np.where(jump, np.nan, x)
+        solid = opened is None or tr["target"] in opened
+        ax.plot(x, np.full(x.shape, tr["dec_deg"]), "-" if solid else ":", color=colour,
+                lw=1.8 if solid else 1.0)  # fmt: skip
+        last = x[np.isfinite(x)]
+        if last.size:
+            ax.annotate(tr["target"], (last[-1], tr["dec_deg"]), fontsize=6, color=colour,
+                        xytext=(2, 1), textcoords="offset points")  # fmt: skip
+    up = ha[np.any(~np.isnan(room), axis=0)]
+    ax.set_xlim(*((up.min() - 0.5, up.max() + 0.5) if up.size else (ha[0], ha[-1])))
+    ax.set_xlabel("hour angle, h (west positive)")
+    ax.set_ylabel("declination, deg")
+    ax.set_title(f"Reachable sky: {doc['title']}\n(grey: a carriage runs out of range; "
+                 "blank: below the altitude limit; solid tracks: open tonight)",
+                 fontsize=10)  # fmt: skip
+    fig.text(0.99, 0.005, "advisory: every motion follows the site's own procedures",
+             ha="right", va="bottom", fontsize=7, color="0.45", style="italic")  # fmt: skip
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=100, bbox_inches="tight")
+    plt.close(fig)
+    return buf.getvalue()

@@ -80,7 +80,8 @@ def gather_inputs(array_path: str | Path, config: str, targets: Targets | str | 
     from scheduler.inputs.catalog import load_targets
 
     array = g.take(load_array, array_path)
-    check_config(array, config, g)
+    if config:  # empty: the command chooses configurations itself
+        check_config(array, config, g)
     modes = [m.name for m in array.modes] if array is not None else None
     cat = targets if isinstance(targets, Targets) or targets is None else g.take(
         load_targets, targets, modes)
