@@ -78,11 +78,14 @@ def _initial(q: QueueInputs, science: list[Candidate], origin: Start | None) -> 
 
 def greedy_sequence(q: QueueInputs, origin: Start | None = None) -> Sequence:
     """A sequence of (candidate, start) chosen greedily by priority; with ``origin`` it
-    starts from that state (a replan) instead of the start of the night."""
+    starts from that state (a replan) instead of the start of the night, and the
+    time-critical targets its previous plan had come before any priority (README,
+    *Replanning*)."""
     targets, end_s = q.problem.targets, q.problem.night.end_s
     rank = targets.priority * targets.value_weight
+    keep = kept_critical(q, origin)
     science = sorted((c for c in q.candidates if c.is_science),
-                     key=lambda c: (-rank[c.target], c.number))  # fmt: skip
+                     key=lambda c: (c.target not in keep, -rank[c.target], c.number))
     st = _initial(q, science, origin)
     lead = q.settings.calibrator_gap_s + max(
         [c.duration_s for c in q.candidates if not c.is_science], default=0.0)
@@ -107,6 +110,16 @@ def greedy_sequence(q: QueueInputs, origin: Start | None = None) -> Sequence:
             continue
         _take(best, st)
     return st.seq
+
+
+def kept_critical(q: QueueInputs, origin: Start | None) -> set[int]:
+    """Time-critical science targets a replan's previous plan had planned."""
+    if origin is None or not origin.previous:
+        return set()
+    by_id = {c.id: c.target for c in q.candidates}
+    t = q.problem.targets
+    return {by_id[i] for i, _ in origin.previous
+            if i in by_id and t.is_science[by_id[i]] and t.is_time_critical(by_id[i])}
 
 
 def _idle_steps(cursor: float, nothing_before: float) -> float:

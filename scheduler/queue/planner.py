@@ -26,7 +26,7 @@ from scheduler.model.problem import NightProblem
 from scheduler.model.reasons import Limit, limit_of, words
 from scheduler.queue.backups import backups
 from scheduler.queue.explain import explain
-from scheduler.queue.greedy import greedy_sequence
+from scheduler.queue.greedy import greedy_sequence, kept_critical
 from scheduler.queue.prepare import QueueInputs, prepare_queue
 from scheduler.queue.restart import restrict
 from scheduler.queue.scoring import (
@@ -56,8 +56,19 @@ def _timed_visits(q: QueueInputs, seq: Sequence, origin: Start | None,
     return to_visits(q.problem, timed, br, origin), timed
 
 
+def _critical_kept(q: QueueInputs, visits: list[Visit], origin: Start | None) -> int:
+    """Visits of time-critical science targets a replan's previous plan had planned."""
+    keep = kept_critical(q, origin)
+    return sum(1 for v in visits if v.target in keep)
+
+
 def _better(q: QueueInputs, a: list[Visit], b: list[Visit], origin: Start | None) -> bool:
-    """Whether plan ``a`` has a higher objective than ``b``."""
+    """Whether plan ``a`` is better than ``b``: more of the time-critical visits a
+    replan's previous plan had (README, *Replanning*: kept before any value), then a
+    higher objective."""
+    ka, kb = _critical_kept(q, a, origin), _critical_kept(q, b, origin)
+    if ka != kb:
+        return ka > kb
     s, done = q.settings, _done(origin)
     return objective(a, q.rule, s, done) > objective(b, q.rule, s, done) + 1e-9
 
@@ -161,6 +172,10 @@ def _unscheduled(q: QueueInputs, visits: list[Visit],
             why = "never observable tonight"
             if int(limit_of(code)) in (Limit.FAINT, Limit.RESOLVED):
                 why, detail = explain(problem, int(i), code)
+            elif w.observable:  # open, but never as long as a visit
+                why = "no window as long as a visit"
+                detail = (f"longest {w.longest_s() / 60:.0f} of {t.duration_s[i] / 60:.0f} min; "
+                          f"{words(code, problem.beams, problem.limits)} limits it most")
             elif w.excluded:
                 why += f" ({words(code, problem.beams, problem.limits)})"
         elif t.needs_calibrator[i] and not any(j in cal_ok for j in np.flatnonzero(q.suits[i])):

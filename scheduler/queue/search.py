@@ -173,7 +173,9 @@ def search(night: Night, start: Route, budget: Budget, seed: int,
     to the best.  The search stops early when the best reaches ``ceiling()``, a
     proven bound: nothing better exists."""
     rng = np.random.default_rng(seed)
-    best = fill(night, drop_idle_calibrators(night, start), budget)
+    first = Budget()  # the first repair always runs to its end (MAX_FILL bounds it), so a
+    best = fill(night, drop_idle_calibrators(night, start), first)  # busy machine still
+    budget.used += first.used  # gets the kept time-critical visits back
     if score(night, best) < score(night, start):
         best = start
     current, size = best, 1
