@@ -15,7 +15,7 @@ import numpy as np
 
 from scheduler.geometry.constraints import evaluate, evaluate_grid
 from scheduler.model.problem import NightProblem
-from scheduler.model.reasons import Limit, limit_of
+from scheduler.model.reasons import Limit, limit_of, most_limiting
 
 GRID_STEP_S = 60.0
 BISECTIONS = 7  # 60 s / 2**7 < 0.5 s
@@ -39,15 +39,19 @@ class TargetWindows:
         return tuple((a, b - duration_s) for a, b in self.observable if b - a >= duration_s)
 
     def main_reason(self) -> int:
-        """What limits the target most: the reason that excludes the most time, not
-        counting the altitude limit unless nothing else excludes any (OK if nothing is
-        excluded at all)."""
+        """What limits the target most (:func:`~scheduler.model.reasons.most_limiting`:
+        the reason code that excludes the most time tonight, the altitude limit
+        included; OK if nothing is excluded at all)."""
         lost: dict[int, float] = {}
         for a, b, code in self.excluded:
             lost[code] = lost.get(code, 0.0) + b - a
-        other = {c: v for c, v in lost.items() if limit_of(c) not in (Limit.LOW, Limit.HIGH)}
-        pool = other or lost
-        return max(pool, key=lambda c: pool[c]) if pool else int(Limit.OK)
+        order = sorted(lost, key=lambda c: (int(limit_of(c)), c))
+        worst = most_limiting(lost, order)
+        return int(Limit.OK) if worst is None else int(worst)
+
+    def longest_s(self) -> float:
+        """The longest observable window, seconds (0: none)."""
+        return max((b - a for a, b in self.observable), default=0.0)
 
 
 def observable_windows(problem: NightProblem, step_s: float = GRID_STEP_S) -> list[TargetWindows]:

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from enum import IntEnum
+from typing import Any
 
 import numpy as np
 
@@ -132,3 +133,47 @@ def short_words(code: int, beams: Beams) -> str:
 def family(code: int) -> str:
     """The coarse family of a code (``open``, ``altitude``, ``horizon mask``, ...)."""
     return FAMILY[Limit(int(code) % DETAIL)]
+
+
+def most_limiting(lost: dict[Any, float], order: list[Any] | tuple[Any, ...]) -> Any:
+    """What limits a target most, the one rule every command uses: the limit that takes
+    the most of its time (``lost``: limit -> time, any unit), the altitude limit
+    included; a tie goes to the limit earlier in ``order``.  None when nothing is lost."""
+    taken = {k: v for k, v in lost.items() if v > 0}
+    if not taken:
+        return None
+    rank = {k: i for i, k in enumerate(order)}
+    return max(taken, key=lambda k: (taken[k], -rank.get(k, len(rank))))
+
+
+def edge_words(code: int, beams: Beams, limits: Limits, opening: bool,
+               short: bool = False) -> str:  # fmt: skip
+    """What happens at a window's edge when the limit ``code`` stops (``opening``) or
+    starts holding the target back: ``rises above 30 deg``, ``rail-5 reaches its far
+    end``, ``leaves the Moon's 15 deg``.  ``short``: a few words for narrow tables."""
+    c = decode(code, beams)
+    deg = np.degrees
+    lo, hi = f"{deg(limits.min_altitude_rad):.0f}", f"{deg(limits.max_altitude_rad):.0f}"
+    moon = f"{deg(limits.moon_separation_min_rad):.0f}"
+    pairs = {
+        Limit.LOW: (f"rises above {lo} deg", f"sets below {lo} deg", f"rises {lo}°",
+                    f"sets {lo}°"),
+        Limit.HIGH: (f"comes down from {hi} deg", f"climbs past {hi} deg", f"below {hi}°",
+                     f"above {hi}°"),
+        Limit.HORIZON: (f"clears {c.station}'s horizon", f"goes behind {c.station}'s horizon",
+                        f"clears {c.station}", f"behind {c.station}"),
+        Limit.SUN: ("leaves the Sun's guard", "nears the Sun", "Sun clear", "Sun near"),
+        Limit.MOON: (f"leaves the Moon's {moon} deg", f"comes within {moon} deg of the Moon",
+                     f"Moon >{moon}°", f"Moon <{moon}°"),
+        Limit.DELAY: (f"{c.high_line} back from its far end", f"{c.high_line} reaches its far "
+                      "end", f"{c.high_line} in", f"{c.high_line} far end"),
+        Limit.TIME_WINDOW: ("its own time window opens", "its own time window closes",
+                            "window opens", "window shuts"),
+        Limit.WIND: ("out of the wind", "turns into the wind", "wind clear", "into wind"),
+        Limit.RESOLVED: ("a baseline measures it again", "over-resolved on every baseline",
+                         "measurable", "resolved"),
+        Limit.FAINT: ("bright enough", "too faint", "bright", "faint"),
+    }  # fmt: skip
+    if c.limit == Limit.OK:
+        return ("dark begins", "dark ends", "dusk", "dawn")[(not opening) + 2 * short]
+    return pairs[c.limit][(not opening) + 2 * short]

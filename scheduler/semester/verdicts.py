@@ -27,7 +27,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from scheduler.semester.availability import Availability
+from scheduler.model.reasons import most_limiting
+from scheduler.semester.availability import FAMILIES, Availability
 from scheduler.semester.pool import Scenario
 from scheduler.semester.realise import FIELDS, Outcome
 
@@ -94,7 +95,7 @@ def _sky_reason(scn: Scenario, j: int, need: int, clear: float,
     if av.hours.get(key, 0.0) == 0.0 and av.up_elsewhere.get(key, 0.0) > 0.0:
         return f"configuration {r.configuration} is not on the array while the target is up", ""
     lost = av.lost.get(key, {})
-    worst = max(lost, key=lambda f: lost[f]) if any(v > 0 for v in lost.values()) else None
+    worst = most_limiting(lost, FAMILIES)
     why = f"; {worst} limits it most" if worst else ""
     return ("sky: too few visits possible even with no weather",
             f"{clear:.0f} of {need}{why}")
