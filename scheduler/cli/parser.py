@@ -8,8 +8,18 @@ import argparse
 DEMO = "--array catalogs/demo_array.toml --config medium --targets catalogs/demo_targets.csv"
 
 
-class _Help(argparse.ArgumentDefaultsHelpFormatter, argparse.RawDescriptionHelpFormatter):
-    """Defaults shown after each option's help; the example kept as written."""
+class _Help(argparse.RawDescriptionHelpFormatter):
+    """Each option's default after its help, unless the help states it already or there
+    is none to state (a flag that is off, an option that is simply not used when
+    absent); the example kept as written."""
+
+    def _get_help_string(self, action: argparse.Action) -> str | None:
+        text = action.help or ""
+        default = action.default
+        if ("default" in text or action.required or default in (None, False)
+                or default is argparse.SUPPRESS):  # fmt: skip
+            return text
+        return f"{text} (default: %(default)s)"
 
 
 def _sub(sub: argparse._SubParsersAction, name: str, text: str,
@@ -154,7 +164,10 @@ def _other_commands(sub: argparse._SubParsersAction) -> None:
     d.add_argument("--dec", help="declination (ICRS): degrees or +dd:mm:ss")
     d.add_argument("--target", help="target name in --targets (instead of --ra/--dec)")
     d.add_argument("--targets", help="target catalog, with --target")
-    d.add_argument("--step-min", type=float, default=10.0, help="sample spacing, minutes")
+    d.add_argument("--step-min", type=float, default=10.0, metavar="MIN",
+                   help="sample spacing, minutes")  # fmt: skip
+    d.add_argument("--force", action="store_true",
+                   help="accept an output of more than 5,000 samples")
     uv = _sub(sub, "uv", "(u, v) tracks and coverage of a target or of a plan's targets",
               "--array catalogs/demo_array.toml --config long --targets "
               "catalogs/demo_targets.csv --night 2027-04-18 --target Heron-05")  # fmt: skip

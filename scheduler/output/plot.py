@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import datetime as dt
 import io
+from typing import Any
 
 import numpy as np
 
@@ -28,6 +29,14 @@ CALIBRATOR_GREY = "0.45"
 
 def plan_png(ctx: NightProblem, plan: Plan) -> bytes:
     """A PNG of ``plan``: altitudes above, carriage paths below."""
+    fig = plan_figure(ctx, plan)
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png")
+    return buf.getvalue()
+
+
+def plan_figure(ctx: NightProblem, plan: Plan) -> Any:
+    """The matplotlib figure of :func:`plan_png` (UTC below, LST above)."""
     try:
         from matplotlib import dates as mdates
         from matplotlib.backends.backend_agg import FigureCanvasAgg
@@ -55,13 +64,12 @@ def plan_png(ctx: NightProblem, plan: Plan) -> bytes:
     bottom.xaxis.set_major_locator(mdates.HourLocator(tz=dt.UTC))
     bottom.xaxis.set_major_formatter(mdates.DateFormatter("%H:%M", tz=dt.UTC))
     bottom.set_xlabel("UTC")
+    _lst_axis(top, ctx, when)
     fig.suptitle(f"Night of {night.date} - configuration {beams.configuration}", fontsize=12)
     fig.text(0.99, 0.005, "advisory: every motion follows the site's own procedures",
              ha="right", va="bottom", fontsize=7, color="0.45", style="italic")  # fmt: skip
     fig.tight_layout(rect=(0, 0.02, 1, 0.97))
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png")
-    return buf.getvalue()
+    return fig
 
 
 def _altitudes(ax, ctx: NightProblem, plan: Plan, t, alt_deg, when) -> None:
@@ -134,12 +142,30 @@ def _carriages(ax, ctx: NightProblem, plan: Plan, when) -> None:
     ax.grid(alpha=0.25)
 
 
-def _palette(count: int) -> list:
-    """``count`` distinct colours, evenly spread over a qualitative ring."""
-    from matplotlib import colormaps
+#: qualitative colours with no grey (grey is the calibrators'), cycled when there are
+#: more tracks than colours; every track is labelled, so a repeat stays readable
+QUALITATIVE = ("tab:blue", "tab:orange", "tab:green", "tab:red", "tab:purple", "tab:brown",
+               "tab:pink", "tab:olive", "tab:cyan", "#1b3a6b", "#b8860b", "#006d5b",
+               "#8b1a4a", "#5b4bb7", "#d2691e", "#2e8b57")  # fmt: skip
 
-    cmap = colormaps["tab10" if count <= 10 else "tab20"]
-    return [cmap(k % cmap.N) for k in range(count)]
+
+def _palette(count: int) -> list:
+    """``count`` colours from :data:`QUALITATIVE`, cycling."""
+    return [QUALITATIVE[k % len(QUALITATIVE)] for k in range(count)]
+
+
+def _lst_axis(ax, ctx: NightProblem, when) -> None:
+    """Local sidereal time along the top of ``ax``, at every whole UTC hour."""
+    night = ctx.night
+    hours = np.arange(np.ceil(night.start_s / 3600.0), np.floor(night.end_s / 3600.0) + 1)
+    t = hours * 3600.0
+    top = ax.twiny()
+    top.set_xlim(ax.get_xlim())
+    top.set_xticks(when(t))
+    lst_h = np.degrees(night.lst_rad(t)) / 15.0
+    top.set_xticklabels([f"{int(h):02d}:{int(round((h % 1) * 60)) % 60:02d}" for h in lst_h],
+                        fontsize=8)  # fmt: skip
+    top.set_xlabel("local sidereal time", fontsize=8)
 
 
 def pressure_png(pressure: list[dict]) -> bytes:
@@ -161,9 +187,11 @@ def pressure_png(pressure: list[dict]) -> bytes:
         ax.bar(lst, [b["requested_hours"] for b in rows], width=0.5, color="tab:red",
                label="requested, with overheads")  # fmt: skip
         ax.set_ylabel(f"{cfg}\nhours")
-        ax.legend(loc="upper right", fontsize="small")
     axes[-1, 0].set_xlabel("local sidereal time, h")
     axes[-1, 0].set_xticks(range(0, 24, 2))
+    handles, labels = axes[0, 0].get_legend_handles_labels()
+    fig.legend(handles, labels, loc="lower center", ncol=2, fontsize="small", frameon=False,
+               bbox_to_anchor=(0.5, -0.04))  # below the panels, hiding no bar
     fig.suptitle("Pressure per configuration and sidereal time (advisory)")
     buf = io.BytesIO()
     fig.savefig(buf, format="png", dpi=100, bbox_inches="tight")

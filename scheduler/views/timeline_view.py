@@ -97,6 +97,7 @@ class TimelineView:
         else:
             yield Text("No visit could be scheduled tonight.", style="bold red")
         yield _summary_panel(self.summary, width)
+        yield Text(SUMMARY_LEGEND, style="dim")
         if self.unscheduled:
             yield from _unscheduled(self.unscheduled, width)
         if self.backups:
@@ -286,6 +287,15 @@ def _visit_table(rows: list[VisitRow], lines, width: int) -> tuple[Table, str]:
 
 
 # ---------------------------------------------------------------- summary, leftovers
+
+
+SUMMARY_LEGEND = (
+    "value: what the science visits earn under the value rule; greedy: what the by-hand "
+    "(greedy) night earns; bound: no plan can earn more (proven, or as far as the time "
+    "limit let the proof go); gap: (bound - value) / bound; idle carriage: seconds of "
+    "carriage moves and settling between visits; carriage wait: seconds by which "
+    "transitions last longer because of the carriages than the telescope slews alone."
+)
 
 
 def _summary_panel(items, width: int) -> Panel:

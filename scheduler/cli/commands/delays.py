@@ -23,6 +23,9 @@ from scheduler.model.times import hours_label, iso_utc_exact
 from scheduler.views.delays_view import DelaySample, DelaysView
 
 MAX_STEP_MIN = 240.0
+MAX_SAMPLES = 5000  # beyond this many samples the output needs --force
+SAMPLE_BYTES = 140  # rough JSON size of one sample, plus SAMPLE_LINE_BYTES per line
+SAMPLE_LINE_BYTES = 25
 
 
 def coordinate_target(ra: str, dec: str) -> Targets:
@@ -90,6 +93,13 @@ def run(args: argparse.Namespace, started_s: float, console: Console) -> Result:
     g.raise_if_any()
     assert targets is not None
     inputs = finish_inputs(array, args.config, targets, date)
+    count = int(inputs.night.duration_s // (args.step_min * 60.0)) + 1
+    if count > MAX_SAMPLES and not args.force:
+        size_mb = count * (SAMPLE_BYTES + SAMPLE_LINE_BYTES * len(inputs.beams)) / 1e6
+        g.add("--step-min", "", f"{args.step_min:g} gives {count:,} samples (about "
+              f"{size_mb:.0f} MB of JSON, more than {MAX_SAMPLES:,} samples); pass --force "
+              "to accept")  # fmt: skip
+        g.raise_if_any()
     rows = samples(inputs, index, args.step_min * 60.0)
     warnings = list(inputs.warnings)
     if args.json:
