@@ -287,3 +287,21 @@ def test_replace_keeps_beams_consistent():
     assert np.allclose(beams.opd_min_m + beams.fixed_offset_m, lo[5])
     assert np.allclose(beams.opd_max_m + beams.fixed_offset_m, hi[5])
     assert replace(inp.problem(), beams=beams).beams.configuration == "x"
+
+
+def test_counted_changes_are_the_listed_changes():
+    """The tie-break's count of changes is the number of changes the table lists, and a
+    line tonight does not feed takes only its own fixed-delay options."""
+    from scheduler.advise.rank import _changes
+    from scheduler.advise.space import options_per_line, tonight_offsets
+
+    inp = load_inputs(ARRAY, "medium", TARGETS, NIGHT)
+    space = whole_space(inp.array, "medium")
+    counted = _changes(space, tonight_offsets(inp.array, "medium"))
+    now = space.choice(0)
+    listed = [len(space.choice(c).changes_from(now)) for c in range(0, len(space), 7)]
+    assert list(counted[::7]) == listed
+    doc = _small_array([("a", 0, 0, 10), ("b", 30, 20, 25)])
+    doc["fixed_delays"] = [{"line": "dl2", "options_m": [10.0, 20.0]}]
+    arr = parse_array(doc)
+    assert options_per_line(arr, "c")[2] == (10.0, 20.0)

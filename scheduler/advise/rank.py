@@ -19,7 +19,13 @@ import numpy as np
 
 from scheduler.advise.score import PoolSky, Scores, pool_sky, score_choices
 from scheduler.advise.search import searched_space
-from scheduler.advise.space import MAX_EXHAUSTIVE, ChoiceSpace, space_size, whole_space
+from scheduler.advise.space import (
+    MAX_EXHAUSTIVE,
+    ChoiceSpace,
+    space_size,
+    tonight_offsets,
+    whole_space,
+)
 from scheduler.model.array import ArrayModel
 from scheduler.model.choices import Choice
 from scheduler.model.problem import NightProblem
@@ -86,7 +92,7 @@ def rank_choices(array: ArrayModel, base: NightProblem, configurations: list[str
         t0 = time.perf_counter()
         sky = pool_sky(replace(base, beams=array.beams(cfg)), step_s)
         space, scores = _cover(array, cfg, sky, seed, max_exhaustive, tick)
-        changes, room = _changes(space), _least_headroom(scores, sky)
+        changes, room = _changes(space, tonight_offsets(array, cfg)), _least_headroom(scores, sky)
         reps = _representatives(scores, changes, room)
         floor = scores.weighted_hours[0] - 1e-9  # no worse than tonight's set-up
         good = [c for c in reps if scores.weighted_hours[c] >= floor][:top]
@@ -103,10 +109,11 @@ def rank_choices(array: ArrayModel, base: NightProblem, configurations: list[str
     return Ranking(tuple(best), tuple(reports), float(step_s))
 
 
-def _changes(space: ChoiceSpace) -> np.ndarray:
-    """How many stations move and fixed delays change against tonight's set-up (C,)."""
+def _changes(space: ChoiceSpace, tonight_m: np.ndarray) -> np.ndarray:
+    """(C,) the changes :meth:`~scheduler.model.choices.Choice.changes_from` lists:
+    stations fed by another line, and lines in use whose fixed delay is not tonight's."""
     moved = (space.line_of_slot != space.line_of_slot[0]).sum(axis=1)
-    return moved + (space.offset_of_slot_m != space.offset_of_slot_m[0]).sum(axis=1)
+    return moved + (space.offset_of_slot_m != tonight_m[space.line_of_slot]).sum(axis=1)
 
 
 def _least_headroom(scores: Scores, sky: PoolSky) -> np.ndarray:

@@ -89,15 +89,14 @@ def score_choices(sky: PoolSky, lo_m: np.ndarray, hi_m: np.ndarray,
     hours = np.zeros((count, n_t))
     best = np.full((count, n_t), np.nan)
     present, starts = np.unique(sky.sample_of, return_index=True)
-    ends = np.append(starts[1:], sky.sample_of.size)
     margin = sky.problem.margins.delay_m
     for a, b, room in headroom_chunks(lo_m, hi_m, sky.d_m):
-        for t, i, j in zip(present, starts, ends, strict=True):
-            part = room[:, i:j]
-            ok = part >= margin
-            hours[a:b, t] = ok.sum(axis=1) * (sky.step_s / 3600.0)
-            peak = np.where(ok, part, -np.inf).max(axis=1)
-            best[a:b, t] = np.where(np.isfinite(peak), peak, np.nan)
+        if present.size:
+            ok = room >= margin
+            hours[a:b, present] = np.add.reduceat(ok, starts, axis=1) * (sky.step_s / 3600.0)
+            np.copyto(room, -np.inf, where=~ok)
+            peak = np.maximum.reduceat(room, starts, axis=1)
+            best[a:b, present] = np.where(np.isfinite(peak), peak, np.nan)
         if tick is not None:
             tick(b)
     return Scores(hours, best, hours @ sky.weight)

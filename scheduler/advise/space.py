@@ -63,14 +63,26 @@ class ChoiceSpace:
 
 
 def options_per_line(array: ArrayModel, configuration: str) -> list[tuple[float, ...]]:
-    """Each delay line's fixed delays to choose from, tonight's first."""
+    """Each delay line's fixed delays to choose from: a line the configuration feeds
+    tonight keeps tonight's offset first, then its ``[[fixed_delays]]`` options; a line
+    it does not feed takes its options (none given: no fixed delay, 0 m)."""
     config = array.configuration(configuration)
     given = {f.line: f.options_m for f in array.fixed_delays}
+    fed = {ln for ln, _ in config.feeds}
     out = []
     for line in array.delay_lines:
-        now = config.offset_m(line.name)
-        out.append(tuple(dict.fromkeys((now,) + given.get(line.name, ()))))
+        if line.name in fed:
+            now = (config.offset_m(line.name),)
+            out.append(tuple(dict.fromkeys(now + given.get(line.name, ()))))
+        else:
+            out.append(given.get(line.name, (0.0,)))
     return out
+
+
+def tonight_offsets(array: ArrayModel, configuration: str) -> np.ndarray:
+    """Each delay line's fixed delay tonight (0 where the configuration feeds none)."""
+    config = array.configuration(configuration)
+    return np.array([config.offset_m(d.name) for d in array.delay_lines])
 
 
 def current_routing(array: ArrayModel, configuration: str) -> tuple[int, ...]:

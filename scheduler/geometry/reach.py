@@ -30,7 +30,7 @@ from scheduler.geometry.delay import offset_span, projected_path
 from scheduler.geometry.sky import altaz, enu_from_hadec
 from scheduler.model.array import Beams
 
-CHUNK_CHOICES = 256  # choices per step of :func:`choice_headroom` (fits the caches)
+CHUNK_CHOICES = 32  # choices per step of :func:`headroom_chunks` (temporaries stay small)
 
 
 def station_terms(beams: Beams, pds_m: np.ndarray) -> np.ndarray:
