@@ -272,7 +272,7 @@ def test_advise_bad_options_are_reported_together(tmp_path, capsys):
     err = capsys.readouterr().err
     assert code == 2
     for expected in ("--top: 0 is not in [1, 50]", "--step-min: 0.1 is not in",
-                     "'nowhere' is not a configuration", "missing is not an existing folder"):
+                     "'nowhere' is not a configuration", "missing does not exist"):
         assert expected in err, err
     assert not list(tmp_path.iterdir())
 

@@ -59,24 +59,24 @@ def _check_one(option: str, given: str, g: Gather) -> OutputPath | None:
             g.add(option, "", f"{given} is a special file (device, pipe or socket); "
                   "opdplan writes regular files only")  # fmt: skip
             return None
-    folder = target.parent
-    if not folder.is_dir():
-        g.add(option, "", f"the folder {folder} does not exist")
-        return None
-    if not os.access(folder, os.W_OK | os.X_OK):
-        g.add(option, "", f"the folder {folder} is not writable")
+    if _writable_folder(option, target.parent, str(target.parent), g) is None:
         return None
     return OutputPath(option, given, target)
 
 
-def check_folder(option: str, given: str, g: Gather) -> Path | None:
-    """A folder to write several files into: it must exist and be writable."""
-    folder = Path(os.path.realpath(given))
+def _writable_folder(option: str, folder: Path, named: str, g: Gather) -> Path | None:
     if not folder.is_dir():
-        g.add(option, "", f"{given} is not an existing folder")
+        g.add(option, "", f"the folder {named} does not exist")
         return None
     if not os.access(folder, os.W_OK | os.X_OK):
-        g.add(option, "", f"the folder {given} is not writable")
+        g.add(option, "", f"the folder {named} is not writable")
+        return None
+    return folder
+
+
+def check_folder(option: str, given: str, g: Gather) -> Path | None:
+    """A folder to write several files into: it must exist and be writable."""
+    if _writable_folder(option, Path(os.path.realpath(given)), given, g) is None:
         return None
     return Path(given)
 
