@@ -34,6 +34,12 @@ def _parsers() -> list[tuple[str, argparse.ArgumentParser]]:
     return out
 
 
+def test_a_seed_of_zero_shows_its_default():
+    sub = dict(_parsers())["opdplan plan"]
+    assert re.search(r"--seed SEED\s+random seed of the optimiser \(default: 0\)",
+                     sub.format_help())
+
+
 def test_version(capsys):
     with pytest.raises(SystemExit) as info:
         main(["--version"])
@@ -53,7 +59,8 @@ def test_every_option_has_help_and_each_command_an_example(name, parser):
     if leaf and name != "opdplan demo":
         assert re.search(r"example:\n  opdplan \S", text), name
     for action in parser._actions:  # a default worth stating is stated once
-        if action.default not in (None, False, argparse.SUPPRESS) and action.option_strings:
+        if action.option_strings and not any(action.default is x for x in (None, False,
+                                                                            argparse.SUPPRESS)):
             if not isinstance(action, argparse._HelpAction | argparse._VersionAction):
                 assert "default" in parser._get_formatter()._get_help_string(action)
 

@@ -16,7 +16,7 @@ class _Help(argparse.RawDescriptionHelpFormatter):
     def _get_help_string(self, action: argparse.Action) -> str | None:
         text = action.help or ""
         default = action.default
-        if ("default" in text or action.required or default in (None, False)
+        if ("default" in text or action.required or default is None or default is False
                 or default is argparse.SUPPRESS):  # fmt: skip
             return text
         return f"{text} (default: %(default)s)"
