@@ -18,7 +18,8 @@ LEGEND = ("value: what the planned night earns (the queue's value rule); sci h: 
 
 
 def _spaces(doc: dict[str, Any]) -> Text:
-    parts = [f"{s['configuration']} {s['combinations']:,} combinations, {s['distinct']:,} "
+    parts = [f"{s['configuration']} {s['combinations']:,} "
+             f"combination{'s' if s['combinations'] != 1 else ''}, {s['distinct']:,} "
              + ("distinct, all scored" if s["exhaustive"] else "met by a search (not all)")
              for s in doc["spaces"]]  # fmt: skip
     return Text("; ".join(parts) + f". Ranked in {doc['rank_s']:.1f} s; "
