@@ -212,3 +212,16 @@ def test_a_replan_keeps_the_campaign(nights, tmp_path):
         for j in range(k):
             assert abs((ha[k] - ha[j] + 12) % 24 - 12) >= SPREAD_H - HA_TOL_H
     assert main(["verify", str(out), "--array", ARRAY, "--targets", TARGETS]) == 0
+
+
+def test_hour_angles_agree_with_astropy():
+    """The night problem's hour angle (local Earth rotation angle less the CIRS right
+    ascension) against astropy's HADec frame, within 5 arcsec of time-angle."""
+    from scheduler.cli.commands.common import load_inputs
+
+    problem = load_inputs(ARRAY, "long", TARGETS, "2027-04-19").problem()
+    i = problem.targets.index("Ember-04")
+    t = np.linspace(problem.night.start_s, problem.night.end_s, 7)
+    ours_h = np.degrees(problem.hour_angle_rad(i, t)) / 15.0
+    diff_arcsec = ((ours_h - _hour_angles_h(list(t)) + 12) % 24 - 12) * 15 * 3600
+    assert np.all(np.abs(diff_arcsec) < 5.0), diff_arcsec

@@ -80,14 +80,28 @@ def coverage(u_m: np.ndarray, v_m: np.ndarray, disk_radius_m: float,
                     fill_radius_m, disk_radius_m)  # fmt: skip
 
 
+def fill_grid(disk_radius_m: float) -> np.ndarray:
+    """The points (M, 2) of a square grid of :data:`FILL_GRID` across the disk's
+    diameter that lie inside the disk."""
+    axis = np.linspace(-disk_radius_m, disk_radius_m, FILL_GRID)
+    gx, gy = np.meshgrid(axis, axis)
+    inside = np.hypot(gx, gy) <= disk_radius_m
+    return np.stack([gx[inside], gy[inside]], -1)
+
+
+def near_samples(grid: np.ndarray, u_m: np.ndarray, v_m: np.ndarray,
+                 fill_radius_m: float) -> np.ndarray:  # fmt: skip
+    """Which grid points lie within ``fill_radius_m`` of a sample or of its mirror."""
+    if np.size(u_m) == 0:
+        return np.zeros(len(grid), bool)
+    pts = np.concatenate([np.stack([u_m, v_m], -1), -np.stack([u_m, v_m], -1)])
+    dist, _ = cKDTree(pts).query(grid, k=1, distance_upper_bound=fill_radius_m * (1 + 1e-12))
+    return dist <= fill_radius_m
+
+
 def fill_fraction(u_m: np.ndarray, v_m: np.ndarray, disk_radius_m: float,
                   fill_radius_m: float) -> float:
     """Fraction of the disk of ``disk_radius_m`` within ``fill_radius_m`` of a sample
     or of its mirror."""
-    pts = np.concatenate([np.stack([u_m, v_m], -1), -np.stack([u_m, v_m], -1)])
-    axis = np.linspace(-disk_radius_m, disk_radius_m, FILL_GRID)
-    gx, gy = np.meshgrid(axis, axis)
-    inside = np.hypot(gx, gy) <= disk_radius_m
-    grid = np.stack([gx[inside], gy[inside]], -1)
-    dist, _ = cKDTree(pts).query(grid, k=1)
-    return float(np.mean(dist <= fill_radius_m))
+    grid = fill_grid(disk_radius_m)
+    return float(np.mean(near_samples(grid, np.ravel(u_m), np.ravel(v_m), fill_radius_m)))

@@ -39,6 +39,17 @@ def sample_spans(spans: list[tuple[float, float]] | tuple[tuple[float, float], .
     return np.concatenate(parts) if parts else np.zeros(0)
 
 
+def uvw_at(problem: NightProblem, i: int, t_s: np.ndarray) -> np.ndarray:
+    """(u, v, w) of every baseline (P, T, 3), metres, for target ``i`` at ``t_s``."""
+    beams = problem.beams
+    a, b = baseline_pairs(beams)
+    base = beams.position_enu_m[b] - beams.position_enu_m[a]
+    if not len(t_s):
+        return np.zeros((len(base), 0, 3))
+    e, n, u = enu_from_cirs(problem.ri_rad[i], problem.di_rad[i], problem.night.frame, t_s)
+    return uvw_tracks(base, problem.night.frame.latitude_rad, e, n, u)
+
+
 def target_tracks(problem: NightProblem, i: int, spans: list[tuple[float, float]],
                   step_s: float, fill_radius_m: float | None = None) -> TargetTracks:  # fmt: skip
     """The tracks of target ``i`` over ``spans`` (POSIX s), sampled every ``step_s``."""
@@ -47,11 +58,7 @@ def target_tracks(problem: NightProblem, i: int, spans: list[tuple[float, float]
     base = beams.position_enu_m[b] - beams.position_enu_m[a]
     lengths = np.linalg.norm(base, axis=1)
     t = sample_spans(spans, step_s)
-    if len(t):
-        e, n, u = enu_from_cirs(problem.ri_rad[i], problem.di_rad[i], problem.night.frame, t)
-        uvw = uvw_tracks(base, problem.night.frame.latitude_rad, e, n, u)
-    else:
-        uvw = np.zeros((len(lengths), 0, 3))
+    uvw = uvw_at(problem, i, t)
     disk = float(lengths.max()) if len(lengths) else 0.0
     radius = fill_radius_m if fill_radius_m is not None else FILL_FRACTION_OF_DISK * disk
     cov = coverage(uvw[..., 0], uvw[..., 1], disk, radius)

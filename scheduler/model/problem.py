@@ -66,9 +66,10 @@ class NightProblem:
         return np.array([m.wavelength_m for m in self.modes])[self.mode_index]
 
     def hour_angle_rad(self, i: int, t_s: np.ndarray | float) -> np.ndarray:
-        """Target ``i``'s hour angle at ``t_s`` (rad in (-pi, pi], positive west), from
-        the night's sidereal time and its apparent place."""
-        return np.angle(np.exp(1j * (self.night.lst_rad(t_s) - self.ri_rad[i])))
+        """Target ``i``'s hour angle at ``t_s`` (rad in (-pi, pi], positive west): the
+        local Earth rotation angle less its CIRS right ascension (both counted from the
+        CIO; the sidereal time would need the equinox-based right ascension)."""
+        return np.angle(np.exp(1j * (self.night.frame.local_era(t_s) - self.ri_rad[i])))
 
     def mode_of(self, i: int) -> Mode:
         return self.modes[int(self.mode_index[i])]

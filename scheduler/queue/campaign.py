@@ -19,8 +19,13 @@ from dataclasses import replace
 import numpy as np
 
 from scheduler.geometry.sky import altaz, enu_from_cirs
-from scheduler.geometry.uv import fill_fraction
-from scheduler.geometry.uv_night import FILL_FRACTION_OF_DISK, target_tracks
+from scheduler.geometry.uv import fill_grid, near_samples
+from scheduler.geometry.uv_night import (
+    FILL_FRACTION_OF_DISK,
+    sample_spans,
+    target_tracks,
+    uvw_at,
+)
 from scheduler.model.campaign import CampaignState
 from scheduler.model.plan import Candidate
 from scheduler.model.problem import NightProblem
@@ -109,16 +114,15 @@ def coverage_gain(problem: NightProblem, i: int, state: CampaignState) -> float:
     mids = np.arange(night.start_s + d / 2, night.end_s - d / 2, TRIAL_STEP_S)
     e, n, u = enu_from_cirs(problem.ri_rad[i], problem.di_rad[i], night.frame, mids)
     up = altaz(e, n, u)[0] >= problem.limits.min_altitude_rad
+    grid = fill_grid(disk)
+    before = near_samples(grid, past.uvw_m[..., 0].ravel(), past.uvw_m[..., 1].ravel(), radius)
     best, alone = 0.0, 0.0
-    pu, pv = past.uvw_m[..., 0].ravel(), past.uvw_m[..., 1].ravel()
-    before = fill_fraction(pu, pv, disk, radius) if pu.size else 0.0
     for m in mids[up]:
-        trial = target_tracks(problem, i, [(m - d / 2, m + d / 2)], TRACK_STEP_S)
-        tu, tv = trial.uvw_m[..., 0].ravel(), trial.uvw_m[..., 1].ravel()
-        gain = fill_fraction(np.concatenate([pu, tu]), np.concatenate([pv, tv]), disk,
-                             radius) - before  # fmt: skip
+        uvw = uvw_at(problem, i, sample_spans([(m - d / 2, m + d / 2)], TRACK_STEP_S))
+        trial = near_samples(grid, uvw[..., 0].ravel(), uvw[..., 1].ravel(), radius)
+        gain = float(np.mean(before | trial) - np.mean(before))
         if gain > best:
-            best, alone = gain, fill_fraction(tu, tv, disk, radius)
+            best, alone = gain, float(np.mean(trial))
     if alone <= 0:
         return MIN_GAIN
     return float(np.clip(best / alone, MIN_GAIN, 1.0))
