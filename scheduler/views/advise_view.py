@@ -23,7 +23,8 @@ def _spaces(doc: dict[str, Any]) -> Text:
              + ("distinct, all scored" if s["exhaustive"] else "met by a search (not all)")
              for s in doc["spaces"]]  # fmt: skip
     return Text("; ".join(parts) + f". Ranked in {doc['rank_s']:.1f} s; "
-                f"{len(doc['choices'])} choices planned ({doc['solver']}) in "
+                f"{len(doc['choices'])} choice{'s' if len(doc['choices']) != 1 else ''} planned "
+                f"({doc['solver']}) in "
                 f"{doc['plan_s']:.1f} s.", style="dim")  # fmt: skip
 
 
