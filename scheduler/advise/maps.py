@@ -46,18 +46,20 @@ class ChoiceMap:
     tracks: tuple[Track, ...]
 
 
-def choice_map(problem: NightProblem, name: str, title: str) -> ChoiceMap:
-    """The map of ``problem``'s beams at its site, with its science targets' tracks."""
+def choice_map(problem: NightProblem, name: str, title: str,
+               tracks: tuple[Track, ...]) -> ChoiceMap:  # fmt: skip
+    """The map of ``problem``'s beams at its site, with the pool's ``tracks``
+    (:func:`pool_tracks`, the same for every choice of a night)."""
     lat = problem.night.frame.latitude_rad
     lim = problem.limits
     ha, dec = sky_axes(lat, lim.min_altitude_rad, HA_STEP_H * RAD_PER_H,
                        np.radians(DEC_STEP_DEG))  # fmt: skip
     reach = reach_map(problem.beams, lat, (lim.min_altitude_rad, lim.max_altitude_rad), ha, dec,
                       problem.margins.delay_m)  # fmt: skip
-    return ChoiceMap(name, title, reach, _tracks(problem))
+    return ChoiceMap(name, title, reach, tracks)
 
 
-def _tracks(problem: NightProblem) -> tuple[Track, ...]:
+def pool_tracks(problem: NightProblem) -> tuple[Track, ...]:
     """Science targets' tracks over the dark hours, NaN where below the altitude limit
     (targets never above it are left out)."""
     t = problem.night.grid(TRACK_STEP_S)

@@ -57,13 +57,12 @@ class Option:
 @dataclass(frozen=True)
 class SpaceReport:
     """How one configuration's choices were covered: ``combinations`` in all,
-    ``distinct`` after merging equivalent ones, scored ``evaluated``; exhaustive or
+    ``distinct`` choices scored (after merging equivalent ones); exhaustive or
     searched; seconds spent."""
 
     configuration: str
     combinations: int
     distinct: int
-    evaluated: int
     exhaustive: bool
     seconds: float
 
@@ -92,17 +91,19 @@ def rank_choices(array: ArrayModel, base: NightProblem, configurations: list[str
         t0 = time.perf_counter()
         sky = pool_sky(replace(base, beams=array.beams(cfg)), step_s)
         space, scores = _cover(array, cfg, sky, seed, max_exhaustive, tick)
-        changes, room = _changes(space, tonight_offsets(array, cfg)), _least_headroom(scores, sky)
+        opens = scores.opens(sky.duration_s)
+        changes, room = _changes(space, tonight_offsets(array, cfg)), _least_headroom(scores, opens)
         reps = _representatives(scores, changes, room)
         floor = scores.weighted_hours[0] - 1e-9  # no worse than tonight's set-up
         good = [c for c in reps if scores.weighted_hours[c] >= floor][:top]
-        for c in good:
-            o = _option(space, scores, sky, c, room[c])
-            scored.append(((-o.weighted_hours, int(changes[c]), -np.nan_to_num(room[c]), k), o))
-        kept += [o for _, o in scored[-len(good):][:1]]  # the configuration's best
-        kept.append(_option(space, scores, sky, 0, room[0]))  # and tonight's set-up
-        reports.append(SpaceReport(cfg, space.combinations, len(space), len(space),
-                                   space.exhaustive, time.perf_counter() - t0))  # fmt: skip
+        options = [_option(space, scores, sky, opens, c, room[c]) for c in good]
+        scored += [((-o.weighted_hours, int(changes[c]), -np.nan_to_num(room[c]), k), o)
+                   for c, o in zip(good, options, strict=True)]  # fmt: skip
+        kept += options[:1]  # the configuration's best
+        kept.append(options[0] if good[0] == 0 else  # and tonight's set-up
+                    _option(space, scores, sky, opens, 0, room[0]))  # fmt: skip
+        reports.append(SpaceReport(cfg, space.combinations, len(space), space.exhaustive,
+                                   time.perf_counter() - t0))  # fmt: skip
     scored.sort(key=lambda x: x[0])
     best = [o for _, o in scored[:top]]
     best += [o for o in kept if o not in best]
@@ -116,9 +117,9 @@ def _changes(space: ChoiceSpace, tonight_m: np.ndarray) -> np.ndarray:
     return moved + (space.offset_of_slot_m != tonight_m[space.line_of_slot]).sum(axis=1)
 
 
-def _least_headroom(scores: Scores, sky: PoolSky) -> np.ndarray:
+def _least_headroom(scores: Scores, opens: np.ndarray) -> np.ndarray:
     """(C,) the smallest best headroom over the targets each choice opens (NaN: none)."""
-    room = np.where(scores.opens(sky.duration_s), scores.best_headroom_m, np.inf)
+    room = np.where(opens, scores.best_headroom_m, np.inf)
     least = room.min(axis=1) if room.size else np.full(len(room), np.inf)
     return np.where(np.isfinite(least), least, np.nan)
 
@@ -146,9 +147,9 @@ def _cover(array: ArrayModel, cfg: str, sky: PoolSky, seed: int, max_exhaustive:
     return space, score(space)
 
 
-def _option(space: ChoiceSpace, scores: Scores, sky: PoolSky, c: int, room: float) -> Option:
+def _option(space: ChoiceSpace, scores: Scores, sky: PoolSky, opens: np.ndarray, c: int,
+            room: float) -> Option:  # fmt: skip
     names = [sky.problem.targets.names[i] for i in sky.science]
-    opens = scores.opens(sky.duration_s)
     now, here = opens[0], opens[c]
     choice = space.choice(c)
     alike = np.all(np.abs(scores.hours - scores.hours[c]) < 1e-6, axis=1)

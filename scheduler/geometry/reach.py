@@ -60,14 +60,6 @@ def headroom_chunks(lo_m: np.ndarray, hi_m: np.ndarray,
         yield a, b, high
 
 
-def choice_headroom(lo_m: np.ndarray, hi_m: np.ndarray, d_m: np.ndarray) -> np.ndarray:
-    """All of :func:`headroom_chunks` at once, (C, N) metres."""
-    out = np.empty((lo_m.shape[0], d_m.shape[1]))
-    for a, b, room in headroom_chunks(lo_m, hi_m, d_m):
-        out[a:b] = room
-    return out
-
-
 @dataclass(frozen=True)
 class ReachMap:
     """A choice's reachable sky on a grid of hour angle (columns) and declination

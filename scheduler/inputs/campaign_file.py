@@ -26,7 +26,7 @@ from typing import Any
 from scheduler.inputs.night_log import read_log
 from scheduler.inputs.toml_file import read_toml
 from scheduler.model.array import ArrayModel
-from scheduler.model.campaign import Campaign, CampaignTarget, DoneVisit
+from scheduler.model.campaign import Campaign, CampaignState, CampaignTarget, DoneVisit
 from scheduler.model.errors import InputError, Problem, ProblemList
 from scheduler.model.log import Event
 from scheduler.model.targets import HOUR_ANGLE_RAD_PER_H, Targets
@@ -146,7 +146,7 @@ def _done(r: Any, source: str, at_s: float | None = None) -> DoneVisit | None:
                      f"{source}: line {r.line}")  # fmt: skip
 
 
-def campaign_of_plan(doc: dict[str, Any]) -> tuple[Campaign, tuple[DoneVisit, ...]] | None:
+def campaign_of_plan(doc: dict[str, Any]) -> CampaignState | None:
     """The campaign a plan document was made for (its ``campaign`` block), so that a
     replan keeps it; None when the plan has none."""
     from scheduler.model.times import parse_utc
@@ -163,4 +163,5 @@ def campaign_of_plan(doc: dict[str, Any]) -> tuple[Campaign, tuple[DoneVisit, ..
                            d["configuration"], parse_utc(d["start_utc"]), parse_utc(d["end_utc"]),
                            "plan")  # fmt: skip
                  for d in t["done"]]
-    return Campaign(block["name"], tuple(targets), block.get("source", "")), tuple(done)
+    return CampaignState(Campaign(block["name"], tuple(targets), block.get("source", "")),
+                         tuple(done))

@@ -23,7 +23,6 @@ from scheduler.geometry.uv import fill_grid, near_samples
 from scheduler.geometry.uv_night import (
     FILL_FRACTION_OF_DISK,
     sample_spans,
-    target_tracks,
     uvw_at,
 )
 from scheduler.model.campaign import CampaignState
@@ -108,14 +107,14 @@ def coverage_gain(problem: NightProblem, i: int, state: CampaignState) -> float:
     t, night = problem.targets, problem.night
     d = float(t.duration_s[i])
     done = [(v.start_s, v.end_s) for v in state.done_of(t.names[i], problem.beams.configuration)]
-    past = target_tracks(problem, i, done, TRACK_STEP_S)
-    disk = past.coverage.disk_radius_m
+    past = uvw_at(problem, i, sample_spans(done, TRACK_STEP_S))
+    disk = problem.beams.longest_baseline_m()
     radius = FILL_FRACTION_OF_DISK * disk
     mids = np.arange(night.start_s + d / 2, night.end_s - d / 2, TRIAL_STEP_S)
     e, n, u = enu_from_cirs(problem.ri_rad[i], problem.di_rad[i], night.frame, mids)
     up = altaz(e, n, u)[0] >= problem.limits.min_altitude_rad
     grid = fill_grid(disk)
-    before = near_samples(grid, past.uvw_m[..., 0].ravel(), past.uvw_m[..., 1].ravel(), radius)
+    before = near_samples(grid, past[..., 0].ravel(), past[..., 1].ravel(), radius)
     best, alone = 0.0, 0.0
     for m in mids[up]:
         uvw = uvw_at(problem, i, sample_spans([(m - d / 2, m + d / 2)], TRACK_STEP_S))

@@ -12,7 +12,7 @@ import numpy as np
 from scheduler.astro.night import find_night
 from scheduler.astro.problem import night_problem
 from scheduler.geometry.uv import Coverage, coverage
-from scheduler.geometry.uv_night import FILL_FRACTION_OF_DISK, target_tracks
+from scheduler.geometry.uv_night import FILL_FRACTION_OF_DISK, sample_spans, uvw_at
 from scheduler.model.array import ArrayModel
 from scheduler.model.campaign import CampaignState
 from scheduler.model.targets import Targets
@@ -58,12 +58,11 @@ def _one(array: ArrayModel, targets: Targets, state: CampaignState, name: str,
     for night_date in sorted({d.night for d in done}):
         problem = night_problem(array, beams, one, find_night(array, night_date))
         spans = [(d.start_s, d.end_s) for d in done if d.night == night_date]
-        tracks = target_tracks(problem, 0, spans, TRACK_STEP_S)
-        u.append(tracks.uvw_m[..., 0].ravel())
-        v.append(tracks.uvw_m[..., 1].ravel())
+        uvw = uvw_at(problem, 0, sample_spans(spans, TRACK_STEP_S))
+        u.append(uvw[..., 0].ravel())
+        v.append(uvw[..., 1].ravel())
         ha += [float(problem.hour_angle_rad(0, 0.5 * (a + b))) for a, b in spans]
-    lengths = np.linalg.norm(beams.position_enu_m[:, None] - beams.position_enu_m[None], axis=-1)
-    disk = float(lengths.max()) if len(lengths) else 0.0
+    disk = beams.longest_baseline_m()
     cov = coverage(np.concatenate(u) if u else np.zeros(0), np.concatenate(v) if v else
                    np.zeros(0), disk, FILL_FRACTION_OF_DISK * disk)  # fmt: skip
     wanted = next(t for t in state.campaign.targets if t.target == name).wanted(cfg)

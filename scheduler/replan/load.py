@@ -77,13 +77,9 @@ def load_replan(plan_path: str, log_path: str, now_text: str, array_path: str | 
     problem = night_problem(array, beams, targets, night, conditions=sit.conditions)
     full = night_problem(array, array.beams(doc["configuration"]), targets, night,
                          conditions=sit.conditions) if sit.out else problem  # fmt: skip
-    state = _campaign(doc)
+    state = campaign_of_plan(doc)
     if state is not None:  # the plan was made for a campaign: the replan keeps it
         problem = campaign_night(problem, state)
         full = campaign_night(full, state) if sit.out else problem
     return Replan(array, problem, origin_of(problem, doc, sit), doc, sit, full, state)
 
-
-def _campaign(doc: dict[str, Any]) -> CampaignState | None:
-    got = campaign_of_plan(doc)
-    return None if got is None else CampaignState(*got)

@@ -67,7 +67,7 @@ def _rows(doc: dict[str, Any]) -> list[dict[str, Any]]:
     return rows
 
 
-def _cells(row: dict[str, Any], key: str, short: bool, cells: int) -> Any:
+def _cells(row: dict[str, Any], key: str, short: bool) -> str:
     t, w = row["target"], row["window"]
     if key == "target":
         return t["name"] if t else ""
@@ -115,7 +115,7 @@ def _text(row: dict[str, Any], key: str, short: bool, cells: int) -> str:
         return profile(row["target"]["margin"]["values"], cells) if row["target"] else ""
     if key in ("peak", "limited"):
         return _other(row, key)
-    return str(_cells(row, key, short, cells))
+    return _cells(row, key, short)
 
 
 def _widths(rows: list[dict[str, Any]], spec: list[tuple[str, str]], short: bool,

@@ -352,13 +352,13 @@ def search(sc: Scenario, exhaustive: Ranking, seed: int) -> Search:
     seconds = time.perf_counter() - t0
     if any(r.exhaustive for r in searched.reports):
         raise RuntimeError(f"{sc.name}: max_exhaustive=0 still enumerated a space")
-    scored = {r.configuration: (r.evaluated, r.distinct) for r in searched.reports}
+    scored = {r.configuration: r.distinct for r in searched.reports}
     exh_distinct = {r.configuration: r.distinct for r in exhaustive.reports}
     per = {}
     for cfg in sc.configurations:
         full = max(o.weighted_hours for o in exhaustive.options if o.choice.configuration == cfg)
         found = max(o.weighted_hours for o in searched.options if o.choice.configuration == cfg)
-        per[cfg] = (full, found, scored[cfg][0], exh_distinct[cfg])
+        per[cfg] = (full, found, scored[cfg], exh_distinct[cfg])
     overall = ratio(max(v[1] for v in per.values()), max(v[0] for v in per.values()))
     return Search(per, min(ratio(v[1], v[0]) for v in per.values()), overall, seconds)
 

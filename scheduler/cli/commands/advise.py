@@ -94,14 +94,15 @@ def _maps(advice: Any, folder: Path, inputs: list[str | Path],
     """A PNG and a JSON map per planned choice, in ``folder``: ``reach-<rank>-<name>``."""
     import json
 
-    from scheduler.advise.maps import choice_map, map_document
+    from scheduler.advise.maps import choice_map, map_document, pool_tracks
     from scheduler.output.plot import reach_png
 
     out: list[tuple[OutputPath, bytes, int]] = []
+    tracks = pool_tracks(advice.planned[0].problem)  # the pool and night of every choice
     for k, p in enumerate(advice.planned, start=1):
         name = p.configuration.name
         title = f"{name}: " + ("; ".join(p.option.changes) or "tonight's set-up")
-        doc = map_document(choice_map(p.problem, name, title))
+        doc = map_document(choice_map(p.problem, name, title, tracks))
         stem = folder / f"reach-{k:02d}-{name.replace('~', '-')}"
         paths = check_outputs({"--plot": f"{stem}.png"}, inputs, g)
         paths += check_outputs({"--plot": f"{stem}.json"}, inputs, g)
